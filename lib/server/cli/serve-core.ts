@@ -1,0 +1,87 @@
+/**
+ * Starting the dashboard: find or start the database, apply migrations, build the app when no
+ * production build exists, then run `next start` with DATABASE_URL pointing at the database.
+ * The launcher stays attached to the embedded database while the server runs and releases it
+ * when the server stops (Ctrl-C stops both).
+ */
+import { spawn, spawnSync } from "node:child_process";
+import { existsSync, readFileSync, statSync } from "node:fs";
+import { join } from "node:path";
+import { openDatabaseUrl } from "../db/connect.ts";
+import { applyMigrations, projectRoot } from "../db/migrate.ts";
+
+export type ServeOptions = {
+  port: number;
+  host: string;
+  afterMigrate?: (databaseUrl: string) => Promise<string[] | void>;
+  rebuild?: boolean;
+};
+
+function nextBin(root: string): string {
+  return join(root, "node_modules", "next", "dist", "bin", "next");
+}
+
+function buildIsStale(root: string): boolean {
+  const id = join(root, ".next", "BUILD_ID");
+  if (!existsSync(id)) return true;
+  const marker = join(root, ".next", "epochal-source-stamp");
+  if (!existsSync(marker)) return true;
+  const head = spawnSync("git", ["rev-parse", "HEAD"], { cwd: root }).stdout?.toString().trim();
+  const dirty = spawnSync("git", ["status", "--porcelain", "app", "lib"], { cwd: root }).stdout?.toString().trim();
+  return readFileSync(marker, "utf8") !== `${head}\n${dirty}` || statSync(id).size === 0;
+}
+
+export function ensureBuild(root = projectRoot(), force = false): void {
+  if (!force && !buildIsStale(root)) return;
+  console.log("Building the dashboard (next build) …");
+  const r = spawnSync(process.execPath, [nextBin(root), "build"], { cwd: root, stdio: "inherit", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } });
+  if (r.status !== 0) throw new Error("next build failed");
+  const head = spawnSync("git", ["rev-parse", "HEAD"], { cwd: root }).stdout?.toString().trim();
+  const dirty = spawnSync("git", ["status", "--porcelain", "app", "lib"], { cwd: root }).stdout?.toString().trim();
+  spawnSync("sh", ["-c", `printf '%s\\n%s' "$1" "$2" > .next/epochal-source-stamp`, "sh", head ?? "", dirty ?? ""], { cwd: root });
+}
+
+export async function serve(opts: ServeOptions): Promise<number> {
+  const root = projectRoot();
+  const target = await openDatabaseUrl((m) => console.log(m));
+  const mig = await applyMigrations(target.url);
+  console.log(mig.applied.length ? `Applied ${mig.applied.length} migration(s).` : `Database up to date (${mig.total} migrations).`);
+  const notes = (await opts.afterMigrate?.(target.url)) ?? [];
+  ensureBuild(root, opts.rebuild ?? false);
+  const child = spawn(process.execPath, [nextBin(root), "start", "-p", String(opts.port), "-H", opts.host], {
+    cwd: root,
+    stdio: ["ignore", "pipe", "inherit"],
+    env: { ...process.env, DATABASE_URL: target.url, NEXT_TELEMETRY_DISABLED: "1", EPOCHAL_PUBLIC_URL: process.env.EPOCHAL_PUBLIC_URL ?? `http://localhost:${opts.port}` },
+  });
+  child.stdout?.on("data", (chunk: Buffer) => {
+    const text = chunk.toString();
+    process.stdout.write(text);
+    if (/Ready in|started server/i.test(text)) {
+      console.log(`\n  Epochal is running at http://localhost:${opts.port}`);
+      for (const n of notes) console.log(`  ${n}`);
+      console.log(`  Database: ${target.embedded ? "embedded PostgreSQL in .epochal-data/ (stops with the server)" : "DATABASE_URL"}`);
+      console.log("  Stop with Ctrl-C.\n");
+    }
+  });
+  const stop = (sig: NodeJS.Signals) => {
+    if (child.exitCode === null) child.kill(sig);
+  };
+  process.on("SIGINT", () => stop("SIGINT"));
+  process.on("SIGTERM", () => stop("SIGTERM"));
+  const code: number = await new Promise((res) => child.on("exit", (c, s) => res(c ?? (s ? 128 + 15 : 1))));
+  await target.detach();
+  return code;
+}
+
+export function parsePort(args: string[]): { port: number; host: string; rebuild: boolean } {
+  let port = Number(process.env.PORT ?? 3000);
+  let host = process.env.HOST ?? "0.0.0.0";
+  let rebuild = false;
+  for (let i = 0; i < args.length; i++) {
+    if (args[i] === "--port") port = Number(args[++i]);
+    else if (args[i] === "--host") host = String(args[++i]);
+    else if (args[i] === "--rebuild") rebuild = true;
+  }
+  if (!Number.isInteger(port) || port <= 0 || port > 65535) throw new Error(`--port: not a port number`);
+  return { port, host, rebuild };
+}
