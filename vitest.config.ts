@@ -17,6 +17,7 @@ export default defineConfig({
           include: ["test/db/**/*.test.ts"],
           environment: "node",
           globalSetup: ["test/support/db-global-setup.ts"],
+          setupFiles: ["test/support/db-setup.ts"],
           testTimeout: 60_000,
           hookTimeout: 120_000,
         },

@@ -18,7 +18,7 @@
  */
 import { spawn } from "node:child_process";
 import { randomBytes } from "node:crypto";
-import { existsSync, mkdirSync, openSync, readFileSync, readdirSync, rmSync, writeFileSync, chownSync, closeSync } from "node:fs";
+import { existsSync, mkdirSync, openSync, readFileSync, readdirSync, rmSync, writeFileSync, chownSync, closeSync, chmodSync } from "node:fs";
 import { createServer } from "node:net";
 import { join, resolve } from "node:path";
 import { userInfo } from "node:os";
@@ -203,6 +203,8 @@ export async function attachEmbeddedDatabase(opts: { dataDir?: string; log?: (m:
   const dataDir = opts.dataDir ?? defaultDataDir();
   const log = opts.log ?? ((m: string) => console.error(m));
   mkdirSync(join(dataDir, "clients"), { recursive: true });
+  // As root the server runs as the `postgres` user, which must be able to enter the folder.
+  if (userInfo().uid === 0) chmodSync(dataDir, 0o711);
   const c = credentials(dataDir);
   let started = false;
   const port = await withLock(dataDir, async () => {
