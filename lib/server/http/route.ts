@@ -1,0 +1,154 @@
+/**
+ * The one wrapper for route handlers: authenticates (session cookie or bearer token), checks the
+ * permission on the site, checks the origin of state-changing requests, and maps errors to
+ * responses. Handlers stay short: parse, call a service, map the result.
+ *
+ *   export const POST = siteRoute("ingest", async ({ req, site, actor }) => Response.json(...));
+ */
+import { getDb } from "../db/client.ts";
+import { AppError, isAppError } from "../errors.ts";
+import { hashSecret, SESSION_COOKIE } from "../auth/secrets.ts";
+import { isRole, roleAllows, scopeAllows, type Permission, type Role, type TokenScope } from "../auth/permissions.ts";
+
+export type Actor =
+  | { kind: "user"; userId: number; email: string; name: string; isAdmin: boolean; label: string }
+  | { kind: "token"; tokenId: number; siteId: number; scope: TokenScope; label: string };
+
+export type SiteRow = { id: number; slug: string; name: string; timeZone: string };
+
+type Params = Record<string, string | string[]>;
+type NextCtx<P> = { params: Promise<P> };
+
+function readCookie(req: Request, name: string): string | null {
+  const raw = req.headers.get("cookie");
+  if (!raw) return null;
+  for (const part of raw.split(";")) {
+    const [k, ...v] = part.trim().split("=");
+    if (k === name) return decodeURIComponent(v.join("="));
+  }
+  return null;
+}
+
+/** The signed-in user of a session secret, or null (expired, unknown, disabled). */
+export async function userFromSessionSecret(secret: string | null): Promise<Extract<Actor, { kind: "user" }> | null> {
+  if (!secret) return null;
+  const db = getDb();
+  const s = await db.session.findUnique({ where: { id: hashSecret(secret) }, include: { user: true } });
+  if (!s || s.expiresAt.getTime() <= Date.now() || s.user.disabledAt) return null;
+  return { kind: "user", userId: s.user.id, email: s.user.email, name: s.user.name, isAdmin: s.user.isAdmin, label: `user:${s.user.email}` };
+}
+
+async function actorFromRequest(req: Request): Promise<Actor | null> {
+  const auth = req.headers.get("authorization");
+  if (auth) {
+    const m = /^Bearer\s+(\S+)$/i.exec(auth);
+    if (!m) throw new AppError("unauthenticated", "Authorization header must be `Bearer <token>`.");
+    const db = getDb();
+    const t = await db.apiToken.findUnique({ where: { tokenHash: hashSecret(m[1]) } });
+    if (!t || t.revokedAt) throw new AppError("unauthenticated", "Unknown or revoked API token.");
+    // Last use: at most one write a minute per token, so a busy logger does not hammer the row.
+    if (!t.lastUsedAt || Date.now() - t.lastUsedAt.getTime() > 60_000)
+      await db.apiToken.update({ where: { id: t.id }, data: { lastUsedAt: new Date() } }).catch(() => undefined);
+    return { kind: "token", tokenId: t.id, siteId: t.siteId, scope: t.scope as TokenScope, label: `token:${t.prefix}` };
+  }
+  return userFromSessionSecret(readCookie(req, SESSION_COOKIE));
+}
+
+/** The role a user holds on a site (global administrators hold `admin` everywhere), or null. */
+export async function roleOnSite(actor: Extract<Actor, { kind: "user" }>, siteId: number): Promise<Role | null> {
+  if (actor.isAdmin) return "admin";
+  const m = await getDb().membership.findUnique({ where: { userId_siteId: { userId: actor.userId, siteId } } });
+  return m && isRole(m.role) ? m.role : null;
+}
+
+export async function assertSitePermission(actor: Actor, site: { id: number }, permission: Permission): Promise<void> {
+  if (actor.kind === "token") {
+    if (actor.siteId !== site.id) throw new AppError("forbidden", "This token belongs to another site.");
+    if (!scopeAllows(actor.scope, permission)) throw new AppError("forbidden", `A token of scope "${actor.scope}" may not ${permission}.`);
+    return;
+  }
+  const role = await roleOnSite(actor, site.id);
+  if (!role || !roleAllows(role, permission)) throw new AppError("forbidden", `Your role on this site does not allow: ${permission}.`);
+}
+
+const UNSAFE = new Set(["POST", "PUT", "PATCH", "DELETE"]);
+
+/** CSRF: a cookie-authenticated state-changing request must come from our own origin. */
+function assertSameOrigin(req: Request, actor: Actor | null): void {
+  if (!UNSAFE.has(req.method) || !actor || actor.kind === "token") return;
+  const origin = req.headers.get("origin");
+  const host = req.headers.get("x-forwarded-host") ?? req.headers.get("host");
+  if (!origin || !host) throw new AppError("forbidden", "Missing Origin header on a state-changing request.");
+  let originHost: string;
+  try {
+    originHost = new URL(origin).host;
+  } catch {
+    throw new AppError("forbidden", "Malformed Origin header.");
+  }
+  if (originHost !== host) throw new AppError("forbidden", "Cross-site request refused.");
+}
+
+export function errorResponse(err: unknown): Response {
+  if (isAppError(err)) {
+    const body: Record<string, unknown> = { error: { code: err.code, message: err.message } };
+    if (err.errors) body.errors = err.errors;
+    if (err.details) Object.assign(body, err.details);
+    return Response.json(body, { status: err.status, headers: { "Cache-Control": "no-store" } });
+  }
+  console.error("epochal: unexpected error in a route", err);
+  return Response.json({ error: { code: "internal", message: "Internal error; it has been logged." } }, { status: 500 });
+}
+
+export type SiteHandler<P> = (ctx: { req: Request; params: P; site: SiteRow; actor: Actor }) => Promise<Response>;
+
+/** A route under /api/v1/sites/{slug}/…: 401 without credentials, 404 unknown site, 403 without the permission. */
+export function siteRoute<P extends Params & { slug: string }>(permission: Permission, handler: SiteHandler<P>) {
+  return async (req: Request, ctx: NextCtx<P>): Promise<Response> => {
+    try {
+      const params = await ctx.params;
+      const actor = await actorFromRequest(req);
+      if (!actor) throw new AppError("unauthenticated", "Sign in or send `Authorization: Bearer <token>`.");
+      assertSameOrigin(req, actor);
+      const site = await getDb().site.findUnique({ where: { slug: String(params.slug) }, select: { id: true, slug: true, name: true, timeZone: true } });
+      // Unknown site and no access look the same to a token of another site: 403, never a hint.
+      if (!site) {
+        if (actor.kind === "token") throw new AppError("forbidden", "This token belongs to another site.");
+        throw new AppError("not_found", `No site "${params.slug}".`);
+      }
+      await assertSitePermission(actor, site, permission);
+      return await handler({ req, params, site, actor });
+    } catch (err) {
+      return errorResponse(err);
+    }
+  };
+}
+
+export type UserHandler<P> = (ctx: { req: Request; params: P; actor: Extract<Actor, { kind: "user" }> }) => Promise<Response>;
+
+/** A route for any signed-in user (tokens are refused); `adminOnly` requires a global administrator. */
+export function userRoute<P extends Params>(opts: { adminOnly?: boolean }, handler: UserHandler<P>) {
+  return async (req: Request, ctx: NextCtx<P>): Promise<Response> => {
+    try {
+      const params = await ctx.params;
+      const actor = await actorFromRequest(req);
+      if (!actor) throw new AppError("unauthenticated", "Sign in first.");
+      if (actor.kind !== "user") throw new AppError("forbidden", "API tokens may not use this route.");
+      assertSameOrigin(req, actor);
+      if (opts.adminOnly && !actor.isAdmin) throw new AppError("forbidden", "Administrators only.");
+      return await handler({ req, params, actor });
+    } catch (err) {
+      return errorResponse(err);
+    }
+  };
+}
+
+/** A route open to everyone (health, sign-in). Errors are still mapped. */
+export function publicRoute<P extends Params>(handler: (ctx: { req: Request; params: P }) => Promise<Response>) {
+  return async (req: Request, ctx: NextCtx<P>): Promise<Response> => {
+    try {
+      return await handler({ req, params: await ctx.params });
+    } catch (err) {
+      return errorResponse(err);
+    }
+  };
+}
