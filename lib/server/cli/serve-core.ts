@@ -5,7 +5,7 @@
  * when the server stops (Ctrl-C stops both).
  */
 import { spawn, spawnSync } from "node:child_process";
-import { existsSync, readFileSync, statSync } from "node:fs";
+import { existsSync, readFileSync, statSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { openDatabaseUrl } from "../db/connect.ts";
 import { applyMigrations, projectRoot } from "../db/migrate.ts";
@@ -21,10 +21,14 @@ function nextBin(root: string): string {
   return join(root, "node_modules", "next", "dist", "bin", "next");
 }
 
+function distDir(): string {
+  return process.env.EPOCHAL_DIST_DIR ?? ".next";
+}
+
 function buildIsStale(root: string): boolean {
-  const id = join(root, ".next", "BUILD_ID");
+  const id = join(root, distDir(), "BUILD_ID");
   if (!existsSync(id)) return true;
-  const marker = join(root, ".next", "epochal-source-stamp");
+  const marker = join(root, distDir(), "epochal-source-stamp");
   if (!existsSync(marker)) return true;
   const head = spawnSync("git", ["rev-parse", "HEAD"], { cwd: root }).stdout?.toString().trim();
   const dirty = spawnSync("git", ["status", "--porcelain", "app", "lib"], { cwd: root }).stdout?.toString().trim();
@@ -38,7 +42,7 @@ export function ensureBuild(root = projectRoot(), force = false): void {
   if (r.status !== 0) throw new Error("next build failed");
   const head = spawnSync("git", ["rev-parse", "HEAD"], { cwd: root }).stdout?.toString().trim();
   const dirty = spawnSync("git", ["status", "--porcelain", "app", "lib"], { cwd: root }).stdout?.toString().trim();
-  spawnSync("sh", ["-c", `printf '%s\\n%s' "$1" "$2" > .next/epochal-source-stamp`, "sh", head ?? "", dirty ?? ""], { cwd: root });
+  writeFileSync(join(root, distDir(), "epochal-source-stamp"), `${head}\n${dirty}`);
 }
 
 export async function serve(opts: ServeOptions): Promise<number> {
