@@ -180,7 +180,7 @@ CREATE TABLE "ElementResult" (
     "sigmaArealStrain" DOUBLE PRECISION,
     "sigmaEngineering" DOUBLE PRECISION,
 
-    CONSTRAINT "ElementResult_pkey" PRIMARY KEY ("elementId","epochId")
+    CONSTRAINT "ElementResult_pkey" PRIMARY KEY ("elementId","referenceEpochId","epochId")
 );
 
 -- CreateTable
@@ -314,7 +314,7 @@ CREATE INDEX "AuditEntry_siteId_at_idx" ON "AuditEntry"("siteId", "at");
 CREATE UNIQUE INDEX "Element_siteId_name_key" ON "Element"("siteId", "name");
 
 -- CreateIndex
-CREATE INDEX "ElementResult_elementId_time_idx" ON "ElementResult"("elementId", "time");
+CREATE INDEX "ElementResult_elementId_referenceEpochId_time_idx" ON "ElementResult"("elementId", "referenceEpochId", "time");
 
 -- CreateIndex
 CREATE INDEX "Alert_siteId_clearedAt_idx" ON "Alert"("siteId", "clearedAt");
