@@ -19,12 +19,17 @@ export type SiteRow = { id: number; slug: string; name: string; timeZone: string
 type Params = Record<string, string | string[]>;
 type NextCtx<P> = { params: Promise<P> };
 
-function readCookie(req: Request, name: string): string | null {
+export function readCookie(req: Request, name: string): string | null {
   const raw = req.headers.get("cookie");
   if (!raw) return null;
   for (const part of raw.split(";")) {
     const [k, ...v] = part.trim().split("=");
-    if (k === name) return decodeURIComponent(v.join("="));
+    if (k !== name) continue;
+    try {
+      return decodeURIComponent(v.join("="));
+    } catch {
+      return null;
+    }
   }
   return null;
 }
@@ -93,7 +98,10 @@ export function errorResponse(err: unknown): Response {
     const body: Record<string, unknown> = { error: { code: err.code, message: err.message } };
     if (err.errors) body.errors = err.errors;
     if (err.details) Object.assign(body, err.details);
-    return Response.json(body, { status: err.status, headers: { "Cache-Control": "no-store" } });
+    const headers: Record<string, string> = { "Cache-Control": "no-store" };
+    const retry = err.details?.retryAfterS;
+    if (err.code === "rate_limited" && typeof retry === "number") headers["Retry-After"] = String(Math.ceil(retry));
+    return Response.json(body, { status: err.status, headers });
   }
   console.error("epochal: unexpected error in a route", err);
   return Response.json({ error: { code: "internal", message: "Internal error; it has been logged." } }, { status: 500 });
