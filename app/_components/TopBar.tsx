@@ -1,0 +1,46 @@
+/**
+ * The header on every signed-in page: product name, Sites, Alerts, Admin (administrators only),
+ * the account's e-mail and Sign out (a POST form; works without JavaScript). Server component:
+ * it reads the session itself, so pages only write <TopBar />.
+ */
+import Link from "next/link";
+import { currentUser } from "@/app/_server/auth.ts";
+import { signOutAction } from "@/app/_server/session-actions.ts";
+
+export async function TopBar() {
+  const user = await currentUser();
+  return (
+    <header className="topbar">
+      <Link href="/" className="topbar-brand">
+        Epochal
+      </Link>
+      <nav aria-label="Main" className="topbar-nav">
+        {user ? (
+          <>
+            <Link href="/sites">Sites</Link>
+            <Link href="/alerts">Alerts</Link>
+            {user.isAdmin ? <Link href="/admin">Admin</Link> : null}
+          </>
+        ) : null}
+      </nav>
+      <div className="topbar-user">
+        {user ? (
+          <>
+            <Link href="/account" title="Your account">
+              {user.email}
+            </Link>
+            <form action={signOutAction}>
+              <button type="submit" className="secondary small">
+                Sign out
+              </button>
+            </form>
+          </>
+        ) : (
+          <Link href="/sign-in">Sign in</Link>
+        )}
+      </div>
+    </header>
+  );
+}
+
+export default TopBar;
