@@ -1,0 +1,257 @@
+/**
+ * The ingest service: epochs in (from any parser, see lib/formats/epoch-json.ts), stored atomically
+ * and idempotently.
+ *
+ * One request is one transaction, serialised per site by a transaction-level advisory lock
+ * (`pg_advisory_xact_lock(INGEST_LOCK_NAMESPACE, siteId)`): two posts of the same epoch cannot both
+ * see "not stored yet"; posts to different sites do not wait for each other. Inside it:
+ *   1. unknown point codes are registered (or refused, Site.refuseUnknownPoints);
+ *   2. each epoch is compared with the current revision at its time by content hash:
+ *      same hash → unchanged (its id is returned); different → conflict (409), or with `revise` a new
+ *      revision (the old one stays, marked not current); none → created;
+ *   3. epochs and observations are written with bulk INSERT … SELECT FROM unnest(…);
+ *   4. one audit row per stored epoch; element results for the stored epochs (lib/server/results);
+ * then, after commit, `afterEpochsCommitted` (lib/server/pipeline.ts). Any failure rolls everything back.
+ * Ingest never updates coordinates and never deletes; the only update is the isCurrent flag of a
+ * revised epoch.
+ */
+import { createHash } from "node:crypto";
+import { getDb, type Db } from "../db/client.ts";
+import type { Prisma } from "../db/generated/client.ts";
+import { AppError, type FieldError } from "../errors.ts";
+import { auditSafe } from "../audit.ts";
+import { checkEpochBounds } from "../schemas/ingest.ts";
+import { computeResultsForEpochs } from "../results/compute.ts";
+import { afterEpochsCommitted } from "../pipeline.ts";
+import { floatArray, intArray, textArray } from "./sql-arrays.ts";
+import type { EpochInput } from "../../formats/epoch-json.ts";
+
+/** First key of the two-key advisory lock: "EPCH" in ASCII, so our locks are recognisable in pg_locks. */
+export const INGEST_LOCK_NAMESPACE = 0x45504348;
+/** Observations per INSERT statement (bounded parameter size; about 5 MB of text per column). */
+const OBSERVATION_CHUNK = 200_000;
+
+export type IngestStage = "after-points" | "after-observations" | "after-results";
+export type IngestOutcome = "created" | "unchanged" | "revised";
+
+export interface IngestOptions {
+  siteId: number;
+  /** Actor label for the audit log (`token:…`, `user:…`, `cli:…`). */
+  actor: string;
+  /** Store a new revision where an epoch at that time holds different coordinates (else 409). */
+  revise?: boolean;
+  /** Where the epochs came from: `api`, `cli`, `mqtt`, `demo`, … */
+  source?: string;
+  /** Clock for the "not in the future" bound (tests). */
+  nowMs?: number;
+  /** Test hook: called at each stage inside the transaction; throwing there must roll everything back. */
+  failpoint?: (stage: IngestStage) => void | Promise<void>;
+}
+
+export interface StoredEpoch {
+  id: number;
+  time: string;
+  observations: number;
+  revision: number;
+  contentHash: string;
+  outcome: IngestOutcome;
+}
+
+export interface IngestResult {
+  /** True when anything was written (HTTP 201), false when every epoch was already stored (200). */
+  stored: boolean;
+  epochs: StoredEpoch[];
+  /** Point codes registered by this request, in order of first appearance. */
+  newPoints: string[];
+  /** Element result rows written. */
+  results: number;
+}
+
+interface ResolvedObservation {
+  point: string;
+  east: number;
+  north: number;
+  height: number;
+  sigmaEast: number;
+  sigmaNorth: number;
+  sigmaHeight: number;
+}
+
+/**
+ * SHA-256 (hex) of an epoch's content: observations sorted by point code (code-unit order), one line
+ * each `point TAB east TAB north TAB height TAB σE TAB σN TAB σH`, numbers in JavaScript's shortest
+ * round-trip form (exact: equal doubles give equal text). σ as stored (defaults applied), so the
+ * same epoch from CSV, JSON or GeoJSON hashes the same. The time is not part of it.
+ */
+export function epochContentHash(obs: readonly ResolvedObservation[]): string {
+  const sorted = [...obs].sort((a, b) => (a.point < b.point ? -1 : a.point > b.point ? 1 : 0));
+  const h = createHash("sha256");
+  for (const o of sorted) h.update(`${o.point}\t${o.east}\t${o.north}\t${o.height}\t${o.sigmaEast}\t${o.sigmaNorth}\t${o.sigmaHeight}\n`);
+  return h.digest("hex");
+}
+
+type Tx = Prisma.TransactionClient;
+
+function transactionTimeoutMs(): number {
+  const v = Number(process.env.EPOCHAL_INGEST_TIMEOUT_MS);
+  return Number.isFinite(v) && v > 0 ? v : 10 * 60_000;
+}
+
+/** Stores the epochs; throws AppError `invalid` (422, nothing written) or `conflict` (409, nothing written). */
+export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOptions, db: Db = getDb()): Promise<IngestResult> {
+  if (input.length === 0) throw new AppError("invalid", "No epochs in the request.", { errors: [{ line: null, field: null, message: "no epochs" }] });
+  const boundErrors = checkEpochBounds(input, opts.nowMs ?? Date.now());
+  if (boundErrors.length > 0) throw new AppError("invalid", "The input has values outside the plausible bounds; nothing was stored.", { errors: boundErrors });
+  const seenTimes = new Set<string>();
+  for (const ep of input) {
+    if (seenTimes.has(ep.time)) throw new AppError("invalid", "Two epochs at the same time in one request.", { errors: [{ line: ep.timeAt.line, field: ep.timeAt.field, message: `a second epoch at ${ep.time}` }] });
+    seenTimes.add(ep.time);
+  }
+
+  const result = await db.$transaction(async (tx) => run(tx, input, opts), { timeout: transactionTimeoutMs(), maxWait: 60_000 });
+  const committed = result.epochs.filter((e) => e.outcome !== "unchanged").map((e) => e.id);
+  await afterEpochsCommitted(opts.siteId, committed);
+  return result;
+}
+
+async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): Promise<IngestResult> {
+  const { siteId } = opts;
+  await tx.$executeRawUnsafe(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, INGEST_LOCK_NAMESPACE, siteId);
+  const site = await tx.site.findUnique({ where: { id: siteId }, select: { sigmaHM: true, sigmaVM: true, refuseUnknownPoints: true } });
+  if (!site) throw new AppError("not_found", `No site with id ${siteId}.`);
+
+  // 1. Points.
+  const firstUse = new Map<string, { epoch: EpochInput; index: number }>();
+  for (const ep of input) ep.observations.forEach((o, i) => firstUse.has(o.point) || firstUse.set(o.point, { epoch: ep, index: i }));
+  const codes = [...firstUse.keys()];
+  const pointId = new Map<string, number>();
+  const known = await tx.$queryRawUnsafe<{ id: number; code: string }[]>(`SELECT id, code FROM "Point" WHERE "siteId" = $1 AND code = ANY($2::text[])`, siteId, textArray(codes));
+  for (const p of known) pointId.set(p.code, p.id);
+  const unknown = codes.filter((c) => !pointId.has(c));
+  if (unknown.length > 0 && site.refuseUnknownPoints) {
+    const errors: FieldError[] = unknown.slice(0, 100).map((c) => {
+      const u = firstUse.get(c) as { epoch: EpochInput; index: number };
+      return { line: u.epoch.observations[u.index].line, field: u.epoch.fieldOf(u.index, "point"), message: `unknown point ${JSON.stringify(c)}: this site accepts only registered points` };
+    });
+    throw new AppError("invalid", "The input names points this site does not know; nothing was stored.", { errors });
+  }
+  if (unknown.length > 0) {
+    await tx.$executeRawUnsafe(`INSERT INTO "Point" ("siteId", code) SELECT $1, c FROM unnest($2::text[]) AS c ON CONFLICT ("siteId", code) DO NOTHING`, siteId, textArray(unknown));
+    const added = await tx.$queryRawUnsafe<{ id: number; code: string }[]>(`SELECT id, code FROM "Point" WHERE "siteId" = $1 AND code = ANY($2::text[])`, siteId, textArray(unknown));
+    for (const p of added) pointId.set(p.code, p.id);
+  }
+  await opts.failpoint?.("after-points");
+
+  // 2. Classify against the current revisions.
+  const resolved = input.map((ep) =>
+    ep.observations.map(
+      (o): ResolvedObservation => ({
+        point: o.point,
+        east: o.east,
+        north: o.north,
+        height: o.height,
+        sigmaEast: o.sigmaEast ?? site.sigmaHM,
+        sigmaNorth: o.sigmaNorth ?? site.sigmaHM,
+        sigmaHeight: o.sigmaHeight ?? site.sigmaVM,
+      }),
+    ),
+  );
+  const hashes = resolved.map((r) => epochContentHash(r));
+  const existing = await tx.$queryRawUnsafe<{ id: number; time: Date; contentHash: string; revision: number; n: number; maxRevision: number }[]>(
+    `SELECT e.id, e.time, e."contentHash", e.revision,
+            (SELECT count(*) FROM "Observation" o WHERE o."epochId" = e.id)::int AS n,
+            (SELECT max(e2.revision) FROM "Epoch" e2 WHERE e2."siteId" = e."siteId" AND e2.time = e.time)::int AS "maxRevision"
+       FROM "Epoch" e
+      WHERE e."siteId" = $1 AND e."isCurrent" AND e.time = ANY($2::timestamptz[])`,
+    siteId,
+    textArray(input.map((e) => e.time)),
+  );
+  const byTime = new Map(existing.map((e) => [e.time.getTime(), e]));
+  const plan: { index: number; revision: number; previous: (typeof existing)[number] | null }[] = [];
+  const out: (StoredEpoch | null)[] = input.map(() => null);
+  const conflicts: { time: string; epochId: number; revision: number; line: number | null; field: string | null }[] = [];
+  input.forEach((ep, i) => {
+    const prev = byTime.get(Date.parse(ep.time));
+    if (!prev) plan.push({ index: i, revision: 1, previous: null });
+    else if (prev.contentHash === hashes[i]) out[i] = { id: prev.id, time: ep.time, observations: prev.n, revision: prev.revision, contentHash: prev.contentHash, outcome: "unchanged" };
+    else if (opts.revise) plan.push({ index: i, revision: prev.maxRevision + 1, previous: prev });
+    else conflicts.push({ time: ep.time, epochId: prev.id, revision: prev.revision, line: ep.timeAt.line, field: ep.timeAt.field });
+  });
+  if (conflicts.length > 0) {
+    throw new AppError("conflict", `${conflicts.length === 1 ? "An epoch at this time is" : `${conflicts.length} epochs at these times are`} already stored with different coordinates; nothing was stored. Send ?revise=true to store a new revision (the old one is kept).`, {
+      errors: conflicts.slice(0, 100).map((c) => ({ line: c.line, field: c.field, message: `an epoch at ${c.time} is already stored with different coordinates (epoch ${c.epochId}, revision ${c.revision})` })),
+      details: { conflicts: conflicts.map(({ time, epochId, revision }) => ({ time, epochId, revision })) },
+    });
+  }
+
+  // 3. Write.
+  const revisedIds = plan.filter((p) => p.previous).map((p) => (p.previous as (typeof existing)[number]).id);
+  if (revisedIds.length > 0) await tx.$executeRawUnsafe(`UPDATE "Epoch" SET "isCurrent" = false WHERE id = ANY($1::int[])`, intArray(revisedIds));
+  let results = 0;
+  if (plan.length > 0) {
+    const inserted = await tx.$queryRawUnsafe<{ id: number; time: Date }[]>(
+      `INSERT INTO "Epoch" ("siteId", "time", "revision", "isCurrent", "source", "contentHash", "createdBy")
+       SELECT $1, t, r, true, $2, h, $3 FROM unnest($4::timestamptz[], $5::int[], $6::text[]) AS u(t, r, h)
+       RETURNING id, "time"`,
+      siteId,
+      opts.source ?? "api",
+      opts.actor,
+      textArray(plan.map((p) => input[p.index].time)),
+      intArray(plan.map((p) => p.revision)),
+      textArray(plan.map((p) => hashes[p.index])),
+    );
+    const idByTime = new Map(inserted.map((r) => [r.time.getTime(), r.id]));
+    for (const p of plan) {
+      const ep = input[p.index];
+      const id = idByTime.get(Date.parse(ep.time));
+      if (id === undefined) throw new Error(`ingest: inserted epoch at ${ep.time} not returned`);
+      out[p.index] = { id, time: ep.time, observations: ep.observations.length, revision: p.revision, contentHash: hashes[p.index], outcome: p.previous ? "revised" : "created" };
+    }
+    await insertObservations(tx, plan.map((p) => ({ epochId: (out[p.index] as StoredEpoch).id, obs: resolved[p.index] })), pointId);
+    await opts.failpoint?.("after-observations");
+
+    // 4. Audit and results.
+    await tx.auditEntry.createMany({
+      data: plan.map((p) => {
+        const e = out[p.index] as StoredEpoch;
+        const before = p.previous ? auditSafe({ id: p.previous.id, revision: p.previous.revision, observations: p.previous.n, contentHash: p.previous.contentHash }) : null;
+        const after = auditSafe({ time: e.time, observations: e.observations, contentHash: e.contentHash, revision: e.revision, source: opts.source ?? "api" });
+        return {
+          actor: opts.actor,
+          siteId,
+          action: p.previous ? "epoch.revise" : "epoch.upload",
+          entityType: "epoch",
+          entityId: String(e.id),
+          ...(before === null ? {} : { before }),
+          ...(after === null ? {} : { after }),
+        };
+      }),
+    });
+    results = await computeResultsForEpochs(tx, siteId, plan.map((p) => (out[p.index] as StoredEpoch).id));
+    await opts.failpoint?.("after-results");
+  }
+  const newPoints = unknown;
+  return { stored: plan.length > 0, epochs: out as StoredEpoch[], newPoints, results };
+}
+
+async function insertObservations(tx: Tx, epochs: { epochId: number; obs: ResolvedObservation[] }[], pointId: Map<string, number>): Promise<void> {
+  let eid: number[] = [], pid: number[] = [], e: number[] = [], n: number[] = [], h: number[] = [], se: number[] = [], sn: number[] = [], sh: number[] = [];
+  const flush = async (): Promise<void> => {
+    if (eid.length === 0) return;
+    await tx.$executeRawUnsafe(
+      `INSERT INTO "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight")
+       SELECT * FROM unnest($1::int[], $2::int[], $3::float8[], $4::float8[], $5::float8[], $6::float8[], $7::float8[], $8::float8[])`,
+      intArray(eid), intArray(pid), floatArray(e), floatArray(n), floatArray(h), floatArray(se), floatArray(sn), floatArray(sh),
+    );
+    eid = []; pid = []; e = []; n = []; h = []; se = []; sn = []; sh = [];
+  };
+  for (const ep of epochs) {
+    for (const o of ep.obs) {
+      const p = pointId.get(o.point);
+      if (p === undefined) throw new Error(`ingest: point ${o.point} has no id`);
+      eid.push(ep.epochId); pid.push(p); e.push(o.east); n.push(o.north); h.push(o.height); se.push(o.sigmaEast); sn.push(o.sigmaNorth); sh.push(o.sigmaHeight);
+    }
+    if (eid.length >= OBSERVATION_CHUNK) await flush();
+  }
+  await flush();
+}

@@ -1,0 +1,42 @@
+/**
+ * What happens after epochs are committed. The ingest service calls `afterEpochsCommitted` once per
+ * request, after its transaction has committed (never inside it: a listener must not see, or act on,
+ * data that could still roll back). Alert evaluation and the live feed register listeners here:
+ *
+ *   onEpochsCommitted(async ({ siteId, epochIds }) => { ... });
+ *
+ * Listeners run one after another in registration order and are awaited; one that throws is logged
+ * and does not stop the others, nor undo the stored epochs.
+ */
+
+export type EpochsCommitted = { siteId: number; epochIds: number[] };
+export type EpochsCommittedListener = (event: EpochsCommitted) => void | Promise<void>;
+
+// Kept on globalThis so that every copy of this module (Next.js bundles, hot reloads) shares one registry.
+const key = Symbol.for("epochal.pipeline.epochsCommitted");
+type Holder = { [key]?: Set<EpochsCommittedListener> };
+
+function listeners(): Set<EpochsCommittedListener> {
+  const h = globalThis as Holder;
+  h[key] ??= new Set();
+  return h[key];
+}
+
+/** Registers a listener; returns a function that removes it. Registering the same function twice keeps one. */
+export function onEpochsCommitted(listener: EpochsCommittedListener): () => void {
+  listeners().add(listener);
+  return () => {
+    listeners().delete(listener);
+  };
+}
+
+export async function afterEpochsCommitted(siteId: number, epochIds: number[]): Promise<void> {
+  if (epochIds.length === 0) return;
+  for (const l of [...listeners()]) {
+    try {
+      await l({ siteId, epochIds: [...epochIds] });
+    } catch (err) {
+      console.error(`epochal: an epochs-committed listener failed for site ${siteId}`, err);
+    }
+  }
+}
