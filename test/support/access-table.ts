@@ -1,0 +1,179 @@
+/**
+ * The access table: every API route and method, who may call it, and a minimal valid request.
+ * test/db/auth/access-table.test.ts finds every app/api/**\/route.ts and FAILS for an exported
+ * method without a row here; it then calls each row without a session, with each site role, with
+ * a role on another site only, as a global administrator and with API tokens, and checks 401 /
+ * 403 / success. The reliability suite can run the same rows over HTTP (see `buildRequest`).
+ *
+ * Adding a row for a new route:
+ *   { route: "/api/v1/sites/[slug]/widgets", method: "POST", access: "manage-elements",
+ *     body: (fx) => ({ name: fx.unique("w") }) },
+ * - `route` is the folder path under app/ (brackets kept), `method` the exported handler.
+ * - `access`: "public" (anyone), "user" (any signed-in user, no tokens), "admin" (global
+ *   administrators only), or a site Permission (site routes: the caller's role on the site, or a
+ *   token of that site whose scope allows it).
+ * - `params(fx)` fills the dynamic segments other than [slug] (slug is always fx.site.slug);
+ *   it may create rows (it runs once per call, so deleting or revoking handlers get a fresh target).
+ * - `body(fx)` is a JSON body; `query` a query string (without "?").
+ * - `ok(status)` when success is not 2xx (e.g. a 404 for a deliberately missing entity still shows
+ *   the caller got past the permission check). Default: 200–299.
+ */
+import type { Db } from "../../lib/server/db/client.ts";
+import { roleAllows, scopeAllows, type Permission, type Role, type TokenScope } from "../../lib/server/auth/permissions.ts";
+import { hashSecret } from "../../lib/server/auth/secrets.ts";
+
+export type Method = "GET" | "POST" | "PUT" | "PATCH" | "DELETE";
+export const METHODS: readonly Method[] = ["GET", "POST", "PUT", "PATCH", "DELETE"];
+
+export type Access = "public" | "user" | "admin" | Permission;
+
+/** What a row's factories may use. `db` is a Prisma client on the database the server uses. */
+export type AccessFixture = {
+  db: Db;
+  site: { id: number; slug: string };
+  /** A user that exists with password `password` (for sign-in rows). */
+  signInUser: { id: number; email: string };
+  /** The password of every fixture user, including the caller. */
+  password: string;
+  /** The calling user's id (null for anonymous or token callers). */
+  callerUserId: number | null;
+  unique: (prefix: string) => string;
+};
+
+export type AccessRow = {
+  route: string;
+  method: Method;
+  access: Access;
+  params?: (fx: AccessFixture) => Promise<Record<string, string>> | Record<string, string>;
+  body?: (fx: AccessFixture) => unknown;
+  query?: string;
+  ok?: (status: number) => boolean;
+  note?: string;
+};
+
+/** Past the permission check: anything but 401/403 and no server error. For rows whose valid body is not written yet. */
+export const notDenied = (s: number) => s !== 401 && s !== 403 && s < 500;
+const is2xx = (s: number) => s >= 200 && s < 300;
+
+async function freshUser(fx: AccessFixture): Promise<string> {
+  const u = await fx.db.user.create({ data: { email: `${fx.unique("victim")}@example.test`, name: "Victim", passwordHash: "$2b$04$invalidinvalidinvalidinvalidinvalidinvalidinvalidinva" } });
+  return String(u.id);
+}
+
+async function freshToken(fx: AccessFixture): Promise<string> {
+  const secret = fx.unique("ept_fixture");
+  const t = await fx.db.apiToken.create({ data: { siteId: fx.site.id, scope: "read", tokenHash: hashSecret(secret), prefix: secret.slice(0, 12) } });
+  return String(t.id);
+}
+
+export const ACCESS_TABLE: AccessRow[] = [
+  { route: "/api/health", method: "GET", access: "public" },
+
+  // Sessions and the signed-in user (issue 5).
+  { route: "/api/v1/session", method: "POST", access: "public", body: (fx) => ({ email: fx.signInUser.email, password: fx.password }) },
+  { route: "/api/v1/session", method: "DELETE", access: "user", ok: (s) => s === 204 },
+  { route: "/api/v1/me", method: "GET", access: "user" },
+  { route: "/api/v1/me/password", method: "POST", access: "user", body: (fx) => ({ currentPassword: fx.password, newPassword: `${fx.password}-changed` }) },
+
+  // Users (global administrators).
+  { route: "/api/v1/users", method: "GET", access: "admin" },
+  { route: "/api/v1/users", method: "POST", access: "admin", body: (fx) => ({ email: `${fx.unique("new")}@example.test`, name: "New user", password: "a long enough password" }) },
+  { route: "/api/v1/users/[id]", method: "PATCH", access: "admin", params: async (fx) => ({ id: await freshUser(fx) }), body: () => ({ disabled: true }) },
+  {
+    route: "/api/v1/users/[id]/memberships",
+    method: "POST",
+    access: "admin",
+    params: async (fx) => ({ id: await freshUser(fx) }),
+    body: (fx) => ({ site: fx.site.slug, role: "viewer" }),
+  },
+  { route: "/api/v1/audit.csv", method: "GET", access: "admin" },
+
+  // Site tokens (site administrators).
+  { route: "/api/v1/sites/[slug]/tokens", method: "GET", access: "administer" },
+  { route: "/api/v1/sites/[slug]/tokens", method: "POST", access: "administer", body: () => ({ scope: "read", name: "access test" }) },
+  { route: "/api/v1/sites/[slug]/tokens/[id]", method: "DELETE", access: "administer", params: async (fx) => ({ id: await freshToken(fx) }) },
+
+  // Dashboard, ingest and element routes (other owners: replace `ok: notDenied` by a valid body and the strict default).
+  { route: "/api/v1/sites/[slug]/epochs", method: "GET", access: "read", ok: notDenied },
+  { route: "/api/v1/sites/[slug]/epochs", method: "POST", access: "ingest", ok: notDenied, note: "owner: add a minimal valid epoch body" },
+  { route: "/api/v1/sites/[slug]/points", method: "GET", access: "read", ok: notDenied },
+  { route: "/api/v1/sites/[slug]/points/[code]/series", method: "GET", access: "read", params: () => ({ code: "P1" }), ok: notDenied },
+  { route: "/api/v1/sites/[slug]/field", method: "GET", access: "read", ok: notDenied },
+  { route: "/api/v1/sites/[slug]/elements", method: "GET", access: "read", ok: notDenied },
+  { route: "/api/v1/sites/[slug]/elements", method: "POST", access: "manage-elements", ok: notDenied },
+  { route: "/api/v1/sites/[slug]/elements/preview-triangulation", method: "POST", access: "manage-elements", ok: notDenied },
+  // A missing element id (404) still proves the caller got past the permission check.
+  { route: "/api/v1/sites/[slug]/elements/[id]", method: "GET", access: "read", params: () => ({ id: "999999999" }), ok: notDenied },
+  { route: "/api/v1/sites/[slug]/elements/[id]", method: "PATCH", access: "manage-elements", params: () => ({ id: "999999999" }), ok: notDenied },
+  { route: "/api/v1/sites/[slug]/elements/[id]", method: "DELETE", access: "manage-elements", params: () => ({ id: "999999999" }), ok: notDenied },
+  { route: "/api/v1/sites/[slug]/elements/[id]/series", method: "GET", access: "read", params: () => ({ id: "999999999" }), ok: notDenied },
+  { route: "/api/v1/sites/[slug]/elements/[id]/trend", method: "GET", access: "read", params: () => ({ id: "999999999" }), ok: notDenied },
+];
+
+// ---------------------------------------------------------------------------------------------
+// Callers and the expected outcome: shared by the in-process test and any HTTP runner.
+
+export type Caller =
+  | { kind: "anonymous"; name: "anonymous" }
+  | { kind: "member"; name: string; role: Role; onOtherSite: boolean }
+  | { kind: "plain-user"; name: "signed-in, no role" }
+  | { kind: "global-admin"; name: "global administrator" }
+  | { kind: "token"; name: string; scope: TokenScope; onOtherSite: boolean };
+
+export const CALLERS: Caller[] = [
+  { kind: "anonymous", name: "anonymous" },
+  { kind: "member", name: "viewer", role: "viewer", onOtherSite: false },
+  { kind: "member", name: "surveyor", role: "surveyor", onOtherSite: false },
+  { kind: "member", name: "engineer", role: "engineer", onOtherSite: false },
+  { kind: "member", name: "site admin", role: "admin", onOtherSite: false },
+  { kind: "member", name: "admin of another site", role: "admin", onOtherSite: true },
+  { kind: "plain-user", name: "signed-in, no role" },
+  { kind: "global-admin", name: "global administrator" },
+  { kind: "token", name: "ingest token", scope: "ingest", onOtherSite: false },
+  { kind: "token", name: "read token", scope: "read", onOtherSite: false },
+  { kind: "token", name: "ingest token of another site", scope: "ingest", onOtherSite: true },
+];
+
+export type Expected = "ok" | 401 | 403;
+
+export function expectedOutcome(access: Access, caller: Caller): Expected {
+  if (access === "public") return "ok";
+  if (caller.kind === "anonymous") return 401;
+  if (caller.kind === "token") {
+    if (access === "user" || access === "admin") return 403;
+    return !caller.onOtherSite && scopeAllows(caller.scope, access) ? "ok" : 403;
+  }
+  if (access === "user") return "ok";
+  if (access === "admin") return caller.kind === "global-admin" ? "ok" : 403;
+  if (caller.kind === "global-admin") return "ok";
+  if (caller.kind === "plain-user") return 403;
+  return !caller.onOtherSite && roleAllows(caller.role, access) ? "ok" : 403;
+}
+
+export function isOk(row: AccessRow, status: number): boolean {
+  return (row.ok ?? is2xx)(status);
+}
+
+/** The concrete request for a row: path with segments filled in, JSON body, same-origin headers. */
+export async function buildRequest(
+  row: AccessRow,
+  fx: AccessFixture,
+  opts: { baseUrl: string; cookie?: string; bearer?: string },
+): Promise<{ request: Request; params: Record<string, string> }> {
+  const extra = row.params ? await row.params(fx) : {};
+  const params: Record<string, string> = { ...(row.route.includes("[slug]") ? { slug: fx.site.slug } : {}), ...extra };
+  const path = row.route.replace(/\[(\w+)\]/g, (_m, k: string) => {
+    if (!(k in params)) throw new Error(`access table: row ${row.method} ${row.route} gives no value for [${k}]`);
+    return encodeURIComponent(params[k]);
+  });
+  const url = new URL(path + (row.query ? `?${row.query}` : ""), opts.baseUrl);
+  const headers = new Headers({ host: url.host, origin: url.origin, "x-forwarded-for": "198.51.100.7" });
+  if (opts.cookie) headers.set("cookie", opts.cookie);
+  if (opts.bearer) headers.set("authorization", `Bearer ${opts.bearer}`);
+  let body: string | undefined;
+  if (row.body) {
+    body = JSON.stringify(row.body(fx));
+    headers.set("content-type", "application/json");
+  }
+  return { request: new Request(url, { method: row.method, headers, body }), params };
+}
