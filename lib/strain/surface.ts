@@ -67,7 +67,8 @@ export function computeSurfaceTriangleStrain(
   if (!(curShape.shape >= SHAPE_TOLERANCE)) return { status: "degenerate", message: `current triangle is collinear or coincident (2·area/longest² = ${curShape.shape.toExponential(2)} < ${SHAPE_TOLERANCE})` };
   const B = planeBasis(E1, E2);
   const b = planeBasis(e1, e2);
-  if (!(dot3(B.n, b.n) > 0)) return { status: "degenerate", message: "triangle turned over between epochs (its normal reversed)" };
+  // No turn-over test here: each epoch's basis follows its own normal from the same vertex order, so
+  // det F = area_x/area_X > 0 by construction (a 3D triangle can only be rotated, never mirrored).
 
   const A: Mat2 = mat2(dot3(B.u, E1), dot3(B.u, E2), dot3(B.v, E1), dot3(B.v, E2));
   const detA = A[0][0] * A[1][1] - A[0][1] * A[1][0];

@@ -4,6 +4,8 @@ import { computeSurfaceTriangleStrain, computeTriangleStrain, type TriangleStrai
 import { mapPlan, pt, type Tri } from "./helpers.ts";
 
 const EPS = 2 ** -52;
+/** Fixed seed: reproducible runs; change it to explore. */
+const SEED = 20240301;
 /** "Zero finite strain" (dimensionless): relative to the unit stretch, domain of the property tests. */
 const RIGID_TOL = 1e-12;
 
@@ -40,7 +42,7 @@ describe("computeTriangleStrain properties (fast-check)", () => {
         d -= 360 * Math.round(d / 360);
         expect(Math.abs(d)).toBeLessThan(1e-9);
       }),
-      { numRuns: 300 },
+      { numRuns: 300, seed: SEED },
     );
   });
 
@@ -56,7 +58,7 @@ describe("computeTriangleStrain properties (fast-check)", () => {
         expect(Math.abs(r.stretchMax - lam)).toBeLessThan(1e-12 * lam);
         expect(Math.abs(r.arealStrain - (lam * lam - 1))).toBeLessThan(1e-12 + 1e-12 * lam * lam);
       }),
-      { numRuns: 300 },
+      { numRuns: 300, seed: SEED },
     );
   });
 
@@ -72,12 +74,12 @@ describe("computeTriangleStrain properties (fast-check)", () => {
           for (const key of ["greenMax", "greenMin", "maxShear", "arealStrain", "rotationDeg", "almansiMax", "smallMin"] as const) {
             expect(Math.abs(r[key] - base[key])).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(base[key])));
           }
-          for (const key of ["greenMax", "greenMin", "maxShear", "arealStrain"] as const) {
-            expect(Math.abs(r.sigma[key] - base.sigma[key])).toBeLessThanOrEqual(1e-9 * base.sigma[key]);
-          }
+          // σ of the principal values follows the principal axes, which are undefined at an isotropic point.
+          const keys = base.maxShear > 1e-6 ? (["greenMax", "greenMin", "maxShear", "arealStrain"] as const) : (["arealStrain"] as const);
+          for (const key of keys) expect(Math.abs(r.sigma[key] - base.sigma[key])).toBeLessThanOrEqual(1e-9 * base.sigma[key]);
         }
       }),
-      { numRuns: 200 },
+      { numRuns: 200, seed: SEED },
     );
   });
 
@@ -92,7 +94,7 @@ describe("computeTriangleStrain properties (fast-check)", () => {
         const scaleTol = 1e-12 * Math.max(...F.flat().map(Math.abs));
         for (const key of ["greenMax", "greenMin", "maxShear", "arealStrain"] as const) expect(Math.abs(a[key] - b[key])).toBeLessThan(scaleTol);
       }),
-      { numRuns: 300 },
+      { numRuns: 300, seed: SEED },
     );
   });
 
@@ -111,7 +113,7 @@ describe("computeTriangleStrain properties (fast-check)", () => {
         const shiftTol = (64 * EPS * (5_000_000 + 3 * s)) / (L * 0.1) + 1e-12;
         for (const key of ["greenMax", "greenMin", "maxShear", "arealStrain"] as const) expect(Math.abs(a[key] - b[key])).toBeLessThan(shiftTol);
       }),
-      { numRuns: 300 },
+      { numRuns: 300, seed: SEED },
     );
   });
 });
@@ -137,7 +139,7 @@ describe("computeSurfaceTriangleStrain properties (fast-check)", () => {
         if (r.status !== "ok") throw new Error(r.message);
         for (const v of [r.greenMax, r.greenMin, r.maxShear, r.arealStrain, ...r.green.flat(), ...r.almansi.flat()]) expect(Math.abs(v)).toBeLessThan(RIGID_TOL);
       }),
-      { numRuns: 300 },
+      { numRuns: 300, seed: SEED },
     );
   });
 });
