@@ -88,11 +88,91 @@ export function parseJsonText(text: string): { ok: true; value: unknown } | { ok
   } catch (err) {
     const msg = (err as Error).message;
     let line: number | null = null;
-    const lc = /line (\d+) column (\d+)/.exec(msg);
-    const pos = /position (\d+)/.exec(msg);
-    if (lc) line = Number(lc[1]);
-    else if (pos) line = src.slice(0, Number(pos[1])).split("\n").length;
-    return { ok: false, error: { line, field: null, message: `not valid JSON: ${msg}` } };
+    const at = locateJsonError(src);
+    if (at !== null) line = src.slice(0, at).split("\n").length;
+    return { ok: false, error: { line, field: null, message: `not valid JSON${line === null ? "" : ` (line ${line})`}: ${msg}` } };
+  }
+}
+
+/**
+ * Offset of the first JSON syntax error in `src` (RFC 8259 grammar), or null when it is valid.
+ * JSON.parse in Node 20 does not always say where it failed; surveyors need the line.
+ */
+export function locateJsonError(src: string): number | null {
+  let i = 0;
+  const n = src.length;
+  const ws = (): void => {
+    while (i < n && (src[i] === " " || src[i] === "\t" || src[i] === "\n" || src[i] === "\r")) i++;
+  };
+  const NUM = /-?(?:0|[1-9]\d*)(?:\.\d+)?(?:[eE][+-]?\d+)?/y;
+  const STR = /"(?:[^"\\\u0000-\u001f]|\\(?:["\\/bfnrt]|u[0-9a-fA-F]{4}))*"/y;
+  class Stop extends Error {}
+  const fail = (): never => {
+    throw new Stop();
+  };
+  const value = (depth: number): void => {
+    if (depth > 512) fail();
+    ws();
+    const c = src[i];
+    if (c === "{") {
+      i++;
+      ws();
+      if (src[i] === "}") {
+        i++;
+        return;
+      }
+      for (;;) {
+        ws();
+        STR.lastIndex = i;
+        if (!STR.test(src)) fail();
+        i = STR.lastIndex;
+        ws();
+        if (src[i] !== ":") fail();
+        i++;
+        value(depth + 1);
+        ws();
+        if (src[i] === ",") i++;
+        else if (src[i] === "}") {
+          i++;
+          return;
+        } else fail();
+      }
+    } else if (c === "[") {
+      i++;
+      ws();
+      if (src[i] === "]") {
+        i++;
+        return;
+      }
+      for (;;) {
+        value(depth + 1);
+        ws();
+        if (src[i] === ",") i++;
+        else if (src[i] === "]") {
+          i++;
+          return;
+        } else fail();
+      }
+    } else if (c === '"') {
+      STR.lastIndex = i;
+      if (!STR.test(src)) fail();
+      i = STR.lastIndex;
+    } else if (src.startsWith("true", i)) i += 4;
+    else if (src.startsWith("false", i)) i += 5;
+    else if (src.startsWith("null", i)) i += 4;
+    else {
+      NUM.lastIndex = i;
+      if (!NUM.test(src)) fail();
+      i = NUM.lastIndex;
+    }
+  };
+  try {
+    value(0);
+    ws();
+    return i === n ? null : i;
+  } catch (e) {
+    if (e instanceof Stop) return i;
+    throw e;
   }
 }
 
