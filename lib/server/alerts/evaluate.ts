@@ -1,0 +1,250 @@
+/**
+ * Alert evaluation after epochs are committed: for every enabled rule of the site and every element
+ * of the rule, the element's results at the new epochs are run through the state machine
+ * (lib/triggers/evaluate.ts) in epoch time order, and the transitions are written: one Alert per rule
+ * and element while the condition lasts, one AlertEvent per change, mail rows for openings and
+ * escalations. All of it in one transaction under a per-site advisory lock, so two ingests of the same
+ * site cannot both open an alert; mails are queued only after commit (runAlerting).
+ *
+ * Which results: the element's reference epoch as the results engine uses it (Element.referenceEpochId,
+ * else the site's reference); only current epoch revisions. An epoch not later than an open alert's last
+ * evaluated epoch is skipped for that alert (late data does not rewrite an alert's past). A rate uses the
+ * element's last result before the first new epoch, then the new epochs in order.
+ *
+ * Recorded, not mailed: a watch (crossing seen, not significant: event "not-significant"), a held rise
+ * ("not-significant"), de-escalation and clearing. After an alert is acknowledged, its escalations are
+ * still recorded but no longer mailed (neither immediately nor in digests).
+ */
+import { getDb, type Db } from "../db/client.ts";
+import type { Alert, ElementResult, Prisma } from "../db/generated/client.ts";
+import { siteReferenceEpochId } from "../results/compute.ts";
+import { evaluateTransition, nextState, type AlertState, type Transition } from "../../triggers/evaluate.ts";
+import { comparedValueOf, DEFAULT_SIGNIFICANCE_K, type ComparedValue, type QuantitySample } from "../../triggers/quantities.ts";
+import { higherLevel, isRuleQuantity, isTriggerLevel, parseQuantity, type BaseQuantity, type RuleSpec, type TriggerLevel } from "../../triggers/rule.ts";
+import { recordAlertMails } from "../mail/outgoing.ts";
+import type { AlertMailFacts } from "../mail/compose.ts";
+import { mailConfigFromEnv, type MailConfig } from "../mail/config.ts";
+import { enqueueMails, scheduleDigest, startMailWorker } from "../mail/queue.ts";
+
+/** Advisory lock class of alert evaluation (the second key is the site id). */
+export const ALERT_LOCK_CLASS = 727_001;
+
+export type EvaluateOptions = { hasSmtp: boolean; publicUrl: string; k?: number };
+
+export type TransitionRecord = { ruleId: number; elementId: number; epochId: number; alertId: number | null; transition: Transition };
+
+export type EvaluationReport = { transitions: TransitionRecord[]; queuedMailIds: number[]; digestItems: number };
+
+const VALUE_FIELD: Record<BaseQuantity, { value: keyof ElementResult; sigma: keyof ElementResult }> = {
+  greenMax: { value: "greenMax", sigma: "sigmaGreenMax" },
+  greenMin: { value: "greenMin", sigma: "sigmaGreenMin" },
+  maxShear: { value: "maxShear", sigma: "sigmaMaxShear" },
+  arealStrain: { value: "arealStrain", sigma: "sigmaArealStrain" },
+  engineering: { value: "engineering", sigma: "sigmaEngineering" },
+};
+
+function sampleOf(row: ElementResult, base: BaseQuantity): QuantitySample {
+  const f = VALUE_FIELD[base];
+  const value = row.status === "ok" ? (row[f.value] as number | null) : null;
+  const sigma = row.status === "ok" ? (row[f.sigma] as number | null) : null;
+  return { timeMs: row.time.getTime(), value, sigma };
+}
+
+function stateOf(a: Alert | null): AlertState {
+  if (!a || a.clearedAt || !isTriggerLevel(a.level)) return { status: "none" };
+  return { status: a.isSignificant ? "open" : "watch", level: a.level };
+}
+
+function responseFor(rule: { responseReview: string; responseAlert: string; responseLimit: string }, level: TriggerLevel): string {
+  return level === "review" ? rule.responseReview : level === "alert" ? rule.responseAlert : rule.responseLimit;
+}
+
+export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly number[], opts: EvaluateOptions): Promise<EvaluationReport> {
+  const k = opts.k ?? DEFAULT_SIGNIFICANCE_K;
+  return db.$transaction(
+    async (tx) => {
+      await tx.$executeRaw`SELECT pg_advisory_xact_lock(${ALERT_LOCK_CLASS}::int, ${siteId}::int)`;
+      const report: EvaluationReport = { transitions: [], queuedMailIds: [], digestItems: 0 };
+      const site = await tx.site.findUnique({ where: { id: siteId }, select: { id: true, slug: true, name: true, timeZone: true } });
+      if (!site || epochIds.length === 0) return report;
+      const rules = await tx.triggerRule.findMany({ where: { siteId, enabled: true }, orderBy: { id: "asc" } });
+      if (rules.length === 0) return report;
+      const epochs = await tx.epoch.findMany({
+        where: { siteId, id: { in: [...epochIds] }, isCurrent: true },
+        orderBy: [{ time: "asc" }, { id: "asc" }],
+        select: { id: true, time: true },
+      });
+      if (epochs.length === 0) return report;
+
+      const allElementIds = [...new Set(rules.flatMap((r) => r.elementIds))];
+      const elements = new Map(
+        (await tx.element.findMany({ where: { siteId, id: { in: allElementIds }, disabledAt: null } })).map((e) => [e.id, e]),
+      );
+      const siteRef = await siteReferenceEpochId(tx, siteId);
+      const refOf = (elementId: number): number | null => elements.get(elementId)?.referenceEpochId ?? siteRef;
+
+      const rows = await tx.elementResult.findMany({ where: { elementId: { in: [...elements.keys()] }, epochId: { in: epochs.map((e) => e.id) } } });
+      const rowAt = new Map<string, ElementResult>();
+      for (const r of rows) if (r.referenceEpochId === refOf(r.elementId)) rowAt.set(`${r.elementId}:${r.epochId}`, r);
+
+      // Rates: each element's last result before the first new epoch.
+      const rateElements = new Set(rules.filter((r) => isRuleQuantity(r.quantity) && parseQuantity(r.quantity).isRate).flatMap((r) => r.elementIds));
+      const prevRow = new Map<number, ElementResult>();
+      for (const elementId of rateElements) {
+        const ref = refOf(elementId);
+        if (!elements.has(elementId) || ref === null) continue;
+        const p = await tx.elementResult.findFirst({
+          where: { elementId, referenceEpochId: ref, time: { lt: epochs[0].time }, status: "ok", epoch: { isCurrent: true } },
+          orderBy: { time: "desc" },
+        });
+        if (p) prevRow.set(elementId, p);
+      }
+
+      const recipients = await tx.mailRecipient.findMany({ where: { siteId } });
+      const openAlerts = await tx.alert.findMany({ where: { siteId, clearedAt: null, ruleId: { in: rules.map((r) => r.id) } }, orderBy: { id: "asc" } });
+      const openBy = new Map<string, Alert>();
+      for (const a of openAlerts) openBy.set(`${a.ruleId}:${a.elementId}`, a);
+      const lastEpochTime = new Map(
+        (await tx.epoch.findMany({ where: { id: { in: openAlerts.map((a) => a.lastEpochId) } }, select: { id: true, time: true } })).map((e) => [e.id, e.time.getTime()]),
+      );
+
+      for (const rule of rules) {
+        if (!isRuleQuantity(rule.quantity)) continue;
+        const spec: RuleSpec = {
+          quantity: rule.quantity,
+          levels: { review: rule.reviewLevel, alert: rule.alertLevel, limit: rule.limitLevel },
+          hysteresis: rule.hysteresis,
+          significantOnly: rule.significantOnly,
+        };
+        const { base } = parseQuantity(rule.quantity);
+        for (const elementId of new Set(rule.elementIds)) {
+          const element = elements.get(elementId);
+          if (!element) continue;
+          let alert: Alert | null = openBy.get(`${rule.id}:${elementId}`) ?? null;
+          const watermark = alert ? (lastEpochTime.get(alert.lastEpochId) ?? -Infinity) : -Infinity;
+          let state = stateOf(alert);
+          const p = prevRow.get(elementId);
+          let prev: QuantitySample | null = p ? sampleOf(p, base) : null;
+          let dirty: Prisma.AlertUpdateInput | null = null;
+
+          for (const ep of epochs) {
+            if (ep.time.getTime() <= watermark) continue;
+            const row = rowAt.get(`${elementId}:${ep.id}`);
+            if (!row) continue;
+            const sample = sampleOf(row, base);
+            const v = comparedValueOf(rule.quantity, sample, prev, k);
+            if (sample.value !== null) prev = sample;
+            const t = evaluateTransition(spec, state, v);
+            if (t.kind === "none" || t.kind === "no-value") {
+              state = nextState(state, t);
+              continue;
+            }
+            const cv = v as ComparedValue;
+            const latest = { lastEpochId: ep.id, value: cv.raw, sigma: cv.sigma };
+            const event = async (kind: string, level: TriggerLevel, comment: string | null = null) =>
+              tx.alertEvent.create({ data: { alertId: alert!.id, at: ep.time, kind, level, value: cv.raw, actor: "system", comment } });
+            const notSignificantNote = `not significant at k = ${k.toFixed(2)}: |value| ≤ k·σ; not counted (rule counts significant values only)`;
+            let mailFor: { kind: "open" | "escalate"; from: TriggerLevel | null; level: TriggerLevel; eventId: bigint } | null = null;
+
+            if (t.kind === "stay") {
+              dirty = latest;
+            } else if (state.status === "none") {
+              // open or watch from nothing: a new alert.
+              const level = t.kind === "open" || t.kind === "watch" ? t.level : null;
+              if (!level) throw new Error(`unexpected transition ${t.kind} from none`);
+              alert = await tx.alert.create({
+                data: {
+                  siteId,
+                  ruleId: rule.id,
+                  elementId,
+                  level,
+                  peakLevel: level,
+                  openedAt: ep.time,
+                  openedEpochId: ep.id,
+                  ...latest,
+                  isSignificant: t.kind === "open",
+                },
+              });
+              const e = await event(t.kind === "open" ? "open" : "not-significant", level, t.kind === "open" ? null : notSignificantNote);
+              if (t.kind === "open") mailFor = { kind: "open", from: null, level, eventId: e.id };
+              dirty = null;
+            } else {
+              const a: Alert = alert!;
+              let data: Prisma.AlertUpdateInput = { ...latest };
+              if (t.kind === "open") {
+                data = { ...data, level: t.level, peakLevel: higherLevel(a.peakLevel as TriggerLevel, t.level)!, isSignificant: true, openedAt: ep.time, openedEpochId: ep.id };
+                const e = await event("open", t.level);
+                mailFor = { kind: "open", from: null, level: t.level, eventId: e.id };
+              } else if (t.kind === "watch") {
+                data = { ...data, level: t.level, peakLevel: higherLevel(a.peakLevel as TriggerLevel, t.level)! };
+                await event("not-significant", t.level, notSignificantNote);
+              } else if (t.kind === "escalate") {
+                data = { ...data, level: t.level, peakLevel: higherLevel(a.peakLevel as TriggerLevel, t.level)! };
+                const e = await event("escalate", t.level, `from ${t.from}`);
+                mailFor = { kind: "escalate", from: t.from, level: t.level, eventId: e.id };
+              } else if (t.kind === "held") {
+                await event("not-significant", t.wouldBe, `${notSignificantNote}; level stays ${t.level}`);
+              } else if (t.kind === "de-escalate") {
+                data = { ...data, level: t.level };
+                await event("de-escalate", t.level, `from ${t.from}`);
+              } else if (t.kind === "clear") {
+                data = { ...data, clearedAt: ep.time };
+                await event("clear", t.from, "fell below review − hysteresis");
+              }
+              alert = await tx.alert.update({ where: { id: a.id }, data });
+              dirty = null;
+            }
+
+            report.transitions.push({ ruleId: rule.id, elementId, epochId: ep.id, alertId: alert?.id ?? null, transition: t });
+            if (mailFor && alert && !alert.acknowledgedAt) {
+              const facts: AlertMailFacts = {
+                site,
+                element: { id: element.id, name: element.name, label: element.label, kind: element.kind },
+                rule: { name: rule.name, quantity: rule.quantity, levels: spec.levels, hysteresis: spec.hysteresis, response: responseFor(rule, mailFor.level) },
+                eventKind: mailFor.kind,
+                fromLevel: mailFor.from,
+                level: mailFor.level,
+                value: cv.raw,
+                sigma: cv.sigma,
+                isSignificant: cv.isSignificant,
+                time: ep.time,
+                publicUrl: opts.publicUrl,
+              };
+              const m = await recordAlertMails(tx, { siteId, alertId: alert.id, eventId: mailFor.eventId, facts, recipients, hasSmtp: opts.hasSmtp });
+              report.queuedMailIds.push(...m.queuedIds);
+              report.digestItems += m.digestItems;
+            }
+            state = nextState(state, t);
+            if (state.status === "none") alert = null;
+          }
+          if (dirty && alert) await tx.alert.update({ where: { id: alert.id }, data: dirty });
+        }
+      }
+      return report;
+    },
+    { timeout: 300_000, maxWait: 60_000 },
+  );
+}
+
+/**
+ * Evaluates and then, after commit, hands the mails to the job queue. The queue's own configuration
+ * (startMailWorker) decides between SMTP and the outbox; if the queue cannot start, alerts are still
+ * evaluated from the environment's settings and the mails wait as `queued` for the next worker start.
+ */
+export async function runAlerting(siteId: number, epochIds: readonly number[]): Promise<EvaluationReport> {
+  let config: MailConfig;
+  let queueUp = true;
+  try {
+    config = (await startMailWorker()).config;
+  } catch (err) {
+    console.error("epochal: the job queue did not start; alert mails wait in the table", err);
+    config = mailConfigFromEnv();
+    queueUp = false;
+  }
+  const report = await evaluateAlerts(getDb(), siteId, epochIds, { hasSmtp: config.smtpUrl !== null, publicUrl: config.publicUrl });
+  if (queueUp) {
+    await enqueueMails(report.queuedMailIds);
+    if (report.digestItems > 0) await scheduleDigest(siteId);
+  }
+  return report;
+}

@@ -1,0 +1,24 @@
+/**
+ * Wires alerting into the ingest pipeline, once per process: `registerAlerting()` adds the
+ * epochs-committed listener and starts the job queue and mail worker in the background. Call it from
+ * any server module that stores epochs (the ingest routes); calling it again does nothing.
+ */
+import { onEpochsCommitted, type EpochsCommitted } from "../pipeline.ts";
+import { runAlerting } from "./evaluate.ts";
+import { startMailWorker } from "../mail/queue.ts";
+
+const KEY = Symbol.for("epochal.alerting.registered");
+type Holder = { [KEY]?: boolean };
+
+async function onCommitted(e: EpochsCommitted): Promise<void> {
+  await runAlerting(e.siteId, e.epochIds);
+}
+
+export function registerAlerting(opts: { startWorker?: boolean } = {}): void {
+  const h = globalThis as Holder;
+  if (h[KEY]) return;
+  h[KEY] = true;
+  onEpochsCommitted(onCommitted);
+  if (opts.startWorker ?? true)
+    startMailWorker().catch((err) => console.error("epochal: the mail worker did not start (it is retried at the next ingest)", err));
+}
