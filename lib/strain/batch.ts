@@ -218,7 +218,7 @@ export function computeTriangleBatch(input: TriangleBatchInput, out: TriangleBat
         (sAreal as Float64Array)[s] = Math.sqrt(va);
       }
     } else {
-      status[s] = Number.isFinite(det + detCur + areal) && Number.isFinite(lRef + lCur) ? BATCH_DEGENERATE : BATCH_NON_FINITE;
+      status[s] = Number.isFinite(e1x + e1y + e2x + e2y + d1x + d1y + d2x + d2y) ? BATCH_DEGENERATE : BATCH_NON_FINITE;
       F.fill(NaN, 4 * s, 4 * s + 4);
       green.fill(NaN, 3 * s, 3 * s + 3);
       greenMax[s] = greenMin[s] = azimuthMaxDeg[s] = rotationDeg[s] = arealStrain[s] = maxShear[s] = NaN;
