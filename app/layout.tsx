@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import { Caution } from "./_components/Caution.tsx";
+import { TopBar } from "./_components/TopBar.tsx";
 import "./globals.css";
 
 export const metadata: Metadata = {
@@ -12,6 +13,7 @@ export default function RootLayout({ children }: { children: React.ReactNode }) 
     <html lang="en">
       <body>
         <a className="skip" href="#main">Skip to content</a>
+        <TopBar />
         <Caution />
         {children}
       </body>

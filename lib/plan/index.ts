@@ -5,3 +5,6 @@ export * from "./glyph.ts";
 export * from "./nice.ts";
 export * from "./units.ts";
 export * from "./quantities.ts";
+export * from "./field.ts";
+export * from "./hull.ts";
+export * from "./time.ts";

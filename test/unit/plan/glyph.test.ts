@@ -79,3 +79,12 @@ describe("displacementArrow / polygonCentroid", () => {
     close(d.y, 1);
   });
 });
+
+describe("convexHull", () => {
+  it("convexHull drops interior points and keeps the corners", async () => {
+    const { convexHull } = await import("../../../lib/plan/hull.ts");
+    const h = convexHull([{ x: 0, y: 0 }, { x: 2, y: 0 }, { x: 1, y: 1 }, { x: 2, y: 2 }, { x: 0, y: 2 }]);
+    expect(h).toHaveLength(4);
+    expect(h).not.toContainEqual({ x: 1, y: 1 });
+  });
+});

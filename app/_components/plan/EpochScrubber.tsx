@@ -1,0 +1,77 @@
+"use client";
+/** Step or play through epochs; compare cumulative (against the reference) or the increment between two epochs. */
+import { formatSiteTime } from "@/lib/plan/index.ts";
+
+export function EpochScrubber(p: {
+  timeZone: string;
+  epochIds: number[];
+  epochTimesMs: number[];
+  referenceEpochId: number | null;
+  index: number;
+  onIndex: (i: number) => void;
+  playing: boolean;
+  onPlay: (p: boolean) => void;
+  compare: "cumulative" | "increment";
+  onCompare: (c: "cumulative" | "increment") => void;
+  fromIndex: number;
+  onFromIndex: (i: number) => void;
+  loading: boolean;
+}) {
+  const last = p.epochIds.length - 1;
+  const t = p.epochTimesMs[p.index];
+  const refIndex = p.referenceEpochId === null ? 0 : Math.max(0, p.epochIds.indexOf(p.referenceEpochId));
+  return (
+    <div className="scrubber no-print" role="group" aria-label="Epoch">
+      <div className="scrubber-row">
+        <button type="button" className="secondary small" onClick={() => p.onIndex(Math.max(0, p.index - 1))} disabled={p.index <= 0} aria-label="Previous epoch">
+          ◀ Prev
+        </button>
+        <button type="button" className="small" onClick={() => p.onPlay(!p.playing)} aria-pressed={p.playing}>
+          {p.playing ? "❚❚ Pause" : "▶ Play"}
+        </button>
+        <button type="button" className="secondary small" onClick={() => p.onIndex(Math.min(last, p.index + 1))} disabled={p.index >= last} aria-label="Next epoch">
+          Next ▶
+        </button>
+        <input
+          type="range"
+          min={0}
+          max={Math.max(0, last)}
+          value={p.index}
+          onChange={(e) => p.onIndex(Number(e.target.value))}
+          aria-label="Epoch"
+          aria-valuetext={t !== undefined ? formatSiteTime(t, p.timeZone) : ""}
+          className="scrubber-range"
+        />
+        <output className="scrubber-time" aria-live="polite" data-testid="epoch-time">
+          {t !== undefined ? formatSiteTime(t, p.timeZone) : "–"} <span className="muted">({p.index + 1} of {p.epochIds.length})</span>
+          {p.loading ? <span className="muted"> · loading</span> : null}
+        </output>
+      </div>
+      <div className="scrubber-row">
+        <label className="check">
+          <input type="radio" name="compare" checked={p.compare === "cumulative"} onChange={() => p.onCompare("cumulative")} /> Cumulative since the reference epoch
+          {p.epochTimesMs[refIndex] !== undefined ? ` (${formatSiteTime(p.epochTimesMs[refIndex], p.timeZone)})` : ""}
+        </label>
+        <label className="check">
+          <input type="radio" name="compare" checked={p.compare === "increment"} onChange={() => p.onCompare("increment")} /> Increment since
+        </label>
+        <select value={p.fromIndex} onChange={(e) => p.onFromIndex(Number(e.target.value))} disabled={p.compare !== "increment"} aria-label="Compare from epoch">
+          {p.epochTimesMs.length <= 2000
+            ? p.epochTimesMs.map((ms, i) => (
+                <option key={p.epochIds[i]} value={i}>
+                  {formatSiteTime(ms, p.timeZone)}
+                </option>
+              ))
+            : // Long histories: offer every n-th epoch plus the neighbours of the current one.
+              [...new Set([...Array.from({ length: 200 }, (_, j) => Math.round((j * last) / 199)), p.index - 1, p.index, p.fromIndex].filter((i) => i >= 0 && i <= last))]
+                .sort((a, b) => a - b)
+                .map((i) => (
+                  <option key={p.epochIds[i]} value={i}>
+                    {formatSiteTime(p.epochTimesMs[i], p.timeZone)}
+                  </option>
+                ))}
+        </select>
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,54 @@
+/** The site plan: the screen a site team keeps open. Data on the server, drawing in a client component. */
+import type { Metadata } from "next";
+import Link from "next/link";
+import { requireSiteRole } from "@/app/_server/auth.ts";
+import { getPlanGeometry, getSiteHeader, listEpochs } from "@/lib/server/dashboard/site.ts";
+import { getStrainField } from "@/lib/server/dashboard/field.ts";
+import { isPlanQuantity, isStrainUnit } from "@/lib/plan/index.ts";
+import { SitePlan } from "@/app/_components/plan/SitePlan.tsx";
+import { TopElements } from "@/app/_components/plan/TopElements.tsx";
+
+export const dynamic = "force-dynamic";
+
+export async function generateMetadata({ params }: { params: Promise<{ slug: string }> }): Promise<Metadata> {
+  return { title: `Plan · ${(await params).slug}` };
+}
+
+export default async function SitePage({ params, searchParams }: { params: Promise<{ slug: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> }) {
+  const { slug } = await params;
+  const sp = await searchParams;
+  const { site } = await requireSiteRole(slug, "read");
+  const header = await getSiteHeader(site.id);
+  const refId = header?.reference?.id ?? null;
+  const [geometry, epochs] = await Promise.all([getPlanGeometry(site.id, refId), listEpochs(site.id)]);
+  const field = header?.latest ? await getStrainField(site.id, { epochId: header.latest.id }) : null;
+  const q = typeof sp.quantity === "string" && isPlanQuantity(sp.quantity) ? sp.quantity : "greenMax";
+  const unit = typeof sp.unit === "string" && isStrainUnit(sp.unit) ? sp.unit : "ue";
+  return (
+    <main id="main" className="wide">
+      <h1 className="visually-hidden">Plan of {site.name}</h1>
+      {geometry.points.length === 0 ? (
+        <div className="panel">
+          <p>No points have been surveyed on this site yet.</p>
+          <p>
+            <Link href={`/sites/${site.slug}/setup/upload`}>Upload an epoch file</Link> to start.
+          </p>
+        </div>
+      ) : (
+        <SitePlan
+          slug={site.slug}
+          timeZone={site.timeZone}
+          points={geometry.points.map((p) => ({ code: p.code, east: p.east, north: p.north, isReference: p.isReference }))}
+          elements={geometry.elements.map((e) => ({ id: e.id, name: e.name, kind: e.kind, mode: e.mode, pointCodes: e.pointCodes }))}
+          epochIds={epochs.ids}
+          epochTimesMs={epochs.timesMs}
+          referenceEpochId={refId}
+          initialField={field}
+          initialQuantity={q}
+          initialUnit={unit}
+        />
+      )}
+      {field ? <TopElements slug={site.slug} elements={geometry.elements} field={field} /> : null}
+    </main>
+  );
+}

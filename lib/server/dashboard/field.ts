@@ -1,0 +1,121 @@
+/**
+ * The strain field of a site at one epoch, for the plan and its scrubber.
+ *
+ * - cumulative (from = the reference epoch, or omitted): the stored ElementResult rows of the epoch
+ *   against each element's reference, read in ONE query by the primary key (elementId,
+ *   referenceEpochId, epochId), so it stays fast on sites with a long history;
+ * - increment (from = another epoch): the finite strain between the two epochs' coordinates,
+ *   recomputed with computeElementStrain (the exact increment, not a difference of cumulative values).
+ *
+ * Displacements per point are epoch − from (the site's reference epoch when cumulative).
+ */
+import "server-only";
+import { getDb } from "../db/client.ts";
+import { AppError } from "../errors.ts";
+import { computeElementStrain } from "../../strain/element.ts";
+import type { ElementKind, ElementMode, SurveyPoint } from "../../strain/types.ts";
+import { planDisplacement, type FieldElement, type FieldPoint, type StrainField } from "../../plan/field.ts";
+import { DEFAULT_K } from "../../plan/quantities.ts";
+import { intList } from "./sql.ts";
+import { referenceEpochIdOf } from "./site.ts";
+
+const EMPTY: Omit<FieldElement, "id" | "status"> = {
+  greenMax: null,
+  greenMin: null,
+  maxShear: null,
+  arealStrain: null,
+  rotationDeg: null,
+  azimuthMaxDeg: null,
+  engineering: null,
+  sigmaGreenMax: null,
+  sigmaGreenMin: null,
+  sigmaMaxShear: null,
+  sigmaArealStrain: null,
+  sigmaEngineering: null,
+};
+
+type ObsRow = { epochId: number; code: string; east: number; north: number; height: number; sigmaEast: number; sigmaNorth: number; sigmaHeight: number };
+
+async function loadObservations(epochIds: number[]): Promise<Map<number, Map<string, SurveyPoint>>> {
+  const rows = await getDb().$queryRawUnsafe<ObsRow[]>(
+    `SELECT o."epochId", p.code, o.east, o.north, o.height, o."sigmaEast", o."sigmaNorth", o."sigmaHeight"
+       FROM "Observation" o JOIN "Point" p ON p.id = o."pointId" WHERE o."epochId" = ANY($1::int[])`,
+    intList(epochIds),
+  );
+  const out = new Map<number, Map<string, SurveyPoint>>();
+  for (const id of epochIds) out.set(id, new Map());
+  for (const r of rows) out.get(r.epochId)?.set(r.code, r);
+  return out;
+}
+
+function displacements(ref: Map<string, SurveyPoint>, cur: Map<string, SurveyPoint>): FieldPoint[] {
+  const out: FieldPoint[] = [];
+  for (const [code, c] of cur) {
+    const r = ref.get(code);
+    if (r) out.push({ code, ...planDisplacement(r, c) });
+  }
+  return out;
+}
+
+const fin = (v: number | null | undefined): number | null => (v === null || v === undefined || !Number.isFinite(v) ? null : v);
+
+export async function getStrainField(siteId: number, opts: { epochId: number; fromEpochId?: number | null; k?: number }): Promise<StrainField> {
+  const db = getDb();
+  const k = opts.k ?? DEFAULT_K;
+  const site = await db.site.findUnique({ where: { id: siteId }, select: { referenceEpochId: true } });
+  if (!site) throw new AppError("not_found", "No such site.");
+  const siteRef = await referenceEpochIdOf(siteId, site.referenceEpochId);
+  const fromId = opts.fromEpochId ?? siteRef;
+  if (fromId === null) throw new AppError("not_found", "The site has no epochs yet.");
+  const epochs = await db.epoch.findMany({ where: { siteId, id: { in: [opts.epochId, fromId] } }, select: { id: true, time: true } });
+  const epoch = epochs.find((e) => e.id === opts.epochId);
+  const from = epochs.find((e) => e.id === fromId);
+  if (!epoch) throw new AppError("not_found", `No epoch ${opts.epochId} on this site.`);
+  if (!from) throw new AppError("not_found", `No epoch ${fromId} on this site.`);
+  const mode = fromId === siteRef ? "cumulative" : "increment";
+  const elements = await db.element.findMany({ where: { siteId, disabledAt: null }, select: { id: true, kind: true, mode: true, pointCodes: true, referenceEpochId: true } });
+  const obs = await loadObservations([...new Set([epoch.id, from.id])]);
+  const points = displacements(obs.get(from.id)!, obs.get(epoch.id)!);
+
+  let out: FieldElement[];
+  if (mode === "cumulative") {
+    const ids = elements.map((e) => e.id);
+    const refs = elements.map((e) => e.referenceEpochId ?? (siteRef as number));
+    const rows = await db.$queryRawUnsafe<FieldElement[]>(
+      `SELECT r."elementId" AS id, r.status, r."greenMax", r."greenMin", r."maxShear", r."arealStrain", r."rotationDeg",
+              r."azimuthMaxDeg", r.engineering, r."sigmaGreenMax", r."sigmaGreenMin", r."sigmaMaxShear", r."sigmaArealStrain",
+              r."sigmaEngineering"
+         FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
+         JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."epochId" = $3`,
+      intList(ids),
+      intList(refs),
+      epoch.id,
+    );
+    out = rows;
+  } else {
+    const ref = obs.get(from.id)!;
+    const cur = obs.get(epoch.id)!;
+    out = elements.map((el) => {
+      const r = computeElementStrain({ id: String(el.id), kind: el.kind as ElementKind, mode: el.mode as ElementMode, points: el.pointCodes }, ref, cur);
+      if (r.status !== "ok") return { id: el.id, status: r.status, ...EMPTY };
+      if ("engineering" in r) return { id: el.id, status: "ok", ...EMPTY, engineering: r.engineering, sigmaEngineering: r.sigma.engineering };
+      const planar = !("volumetricStrain" in r);
+      return {
+        id: el.id,
+        status: "ok",
+        ...EMPTY,
+        greenMax: r.greenMax,
+        greenMin: r.greenMin,
+        maxShear: r.maxShear,
+        arealStrain: planar && "arealStrain" in r ? r.arealStrain : null,
+        rotationDeg: planar ? r.rotationDeg : null,
+        azimuthMaxDeg: "azimuthMaxDeg" in r ? fin(r.azimuthMaxDeg) : null,
+        sigmaGreenMax: r.sigma.greenMax,
+        sigmaGreenMin: r.sigma.greenMin,
+        sigmaMaxShear: r.sigma.maxShear,
+        sigmaArealStrain: planar && "arealStrain" in r.sigma ? r.sigma.arealStrain : null,
+      };
+    });
+  }
+  return { mode, epoch: { id: epoch.id, timeMs: epoch.time.getTime() }, from: { id: from.id, timeMs: from.time.getTime() }, k, elements: out, points };
+}

@@ -1,0 +1,317 @@
+/**
+ * Site page benchmark: time until the site plan is drawn and no request is pending, in headless
+ * Chromium, for a synthetic site (default 500 points, one year of epochs every 6 h = 1 460 epochs,
+ * ≈ 950 Delaunay triangles, ≈ 1.4 million ElementResult rows), against `next start` on the
+ * production build (EPOCHAL_DIST_DIR) and its own fresh database. Not a timed test: it prints figures.
+ *
+ *   DATABASE_URL=postgresql://postgres@127.0.0.1:5432/postgres EPOCHAL_DIST_DIR=.next-bench \
+ *     node --import tsx test/bench/page.ts [--json] [--points 500] [--epochs 1460] [--runs 5]
+ *
+ * Options: --keep leaves the database and server running (prints the URL and a session cookie) for
+ * looking at the screens by hand; --no-build uses the existing build as it is.
+ *
+ * Data: seeded pseudo-random points in a jittered grid over 480 m × 320 m, moving with a growing
+ * settlement bowl (radial inward movement, so strain contracts near the centre and extends at the
+ * rim) plus 0.7 mm noise; elements from triangulatePlan; results from the batch strain kernel,
+ * inserted in bulk with unnest() — the same columns the ingest service writes.
+ */
+import { spawn, type ChildProcess } from "node:child_process";
+import { createServer } from "node:net";
+import { existsSync } from "node:fs";
+import pg from "pg";
+import { chromium } from "playwright-core";
+import { createTestDatabase } from "../support/database.ts";
+import { ensureBuild } from "../../lib/server/cli/serve-core.ts";
+import { triangulatePlan } from "../../lib/network/triangulate.ts";
+import { computeTriangleBatch, createTriangleBatchOut, BATCH_OK } from "../../lib/strain/batch.ts";
+import { hashSecret, newSecret } from "../../lib/server/auth/secrets.ts";
+
+type Args = { json: boolean; points: number; epochs: number; runs: number; keep: boolean; build: boolean };
+
+function parseArgs(argv: string[]): Args {
+  const a: Args = { json: false, points: 500, epochs: 1460, runs: 5, keep: false, build: true };
+  for (let i = 0; i < argv.length; i++) {
+    const k = argv[i];
+    if (k === "--json") a.json = true;
+    else if (k === "--keep") a.keep = true;
+    else if (k === "--no-build") a.build = false;
+    else if (k === "--points") a.points = Number(argv[++i]);
+    else if (k === "--epochs") a.epochs = Number(argv[++i]);
+    else if (k === "--runs") a.runs = Number(argv[++i]);
+    else throw new Error(`unknown option ${k}`);
+  }
+  return a;
+}
+
+/** Mulberry32: small seeded generator so every run makes the same site. */
+function rng(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = s;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+const fl = (v: readonly (number | null)[]) => `{${v.map((x) => (x === null || !Number.isFinite(x) ? "NULL" : String(x))).join(",")}}`;
+
+export type SyntheticSite = { siteId: number; slug: string; cookie: string; email: string; password: string; points: number; epochs: number; elements: number; results: number };
+
+/** Builds the synthetic site in the database at `url`; returns its slug and a session cookie for an engineer. */
+export async function buildSyntheticSite(url: string, opts: { points: number; epochs: number; log?: (m: string) => void }): Promise<SyntheticSite> {
+  const log = opts.log ?? (() => undefined);
+  const c = new pg.Client({ connectionString: url });
+  await c.connect();
+  try {
+    const rand = rng(20240601);
+    const slug = "bench-site";
+    const site = await c.query<{ id: number }>(`INSERT INTO "Site"(slug, name, "timeZone") VALUES ($1, 'Bench: riverside excavation', 'Europe/Zurich') RETURNING id`, [slug]);
+    const siteId = site.rows[0].id;
+    // Points on a jittered grid, 480 m × 320 m, origin at a plausible grid position.
+    const nx = Math.max(2, Math.round(Math.sqrt(opts.points * 1.5)));
+    const ny = Math.max(2, Math.ceil(opts.points / nx));
+    const dx = 480 / (nx - 1);
+    const dy = 320 / (ny - 1);
+    const pts: { code: string; e: number; n: number; h: number; ref: boolean }[] = [];
+    for (let j = 0; j < ny && pts.length < opts.points; j++)
+      for (let i = 0; i < nx && pts.length < opts.points; i++) {
+        const code = `P${String(pts.length + 1).padStart(3, "0")}`;
+        const edge = i === 0 || j === 0 || i === nx - 1 || j === ny - 1;
+        pts.push({ code, e: 2600000 + i * dx + (rand() - 0.5) * dx * 0.5, n: 1200000 + j * dy + (rand() - 0.5) * dy * 0.5, h: 410 + rand() * 5, ref: edge && (i + j) % 7 === 0 });
+      }
+    const pointIds = await c.query<{ id: number; code: string }>(
+      `INSERT INTO "Point"("siteId", code, "isReference") SELECT $1, * FROM unnest($2::text[], $3::bool[]) RETURNING id, code`,
+      [siteId, `{${pts.map((p) => p.code).join(",")}}`, `{${pts.map((p) => (p.ref ? "t" : "f")).join(",")}}`],
+    );
+    const idOf = new Map(pointIds.rows.map((r) => [r.code, r.id]));
+    const t0 = Date.UTC(2025, 0, 1, 6);
+    const stepMs = (365 * 86_400_000) / opts.epochs;
+    const times = Array.from({ length: opts.epochs }, (_, k) => new Date(t0 + k * stepMs).toISOString());
+    const ep = await c.query<{ id: number; time: Date }>(
+      `INSERT INTO "Epoch"("siteId", time, "contentHash", source) SELECT $1, t, md5(t::text), 'bench' FROM unnest($2::timestamptz[]) t ORDER BY t RETURNING id, time`,
+      [siteId, `{${times.join(",")}}`],
+    );
+    const epochs = ep.rows.sort((a, b) => a.time.getTime() - b.time.getTime());
+    await c.query(`UPDATE "Site" SET "referenceEpochId" = $1 WHERE id = $2`, [epochs[0].id, siteId]);
+    log(`site ${slug}: ${pts.length} points, ${epochs.length} epochs`);
+
+    // Movement: settlement bowl centred on the excavation, growing through the year.
+    const ce = 2600000 + 300;
+    const cn = 1200000 + 170;
+    const R = 120;
+    const coords = (p: (typeof pts)[number], k: number): [number, number, number] => {
+      const f = k / Math.max(1, opts.epochs - 1);
+      const re = p.e - ce;
+      const rn = p.n - cn;
+      const r2 = re * re + rn * rn;
+      const bowl = Math.exp(-r2 / (R * R));
+      const a = -0.00012 * f * f * bowl; // radial strain-like factor: inward movement
+      const noise = () => (rand() - 0.5) * 0.0014;
+      return [p.e + a * re + noise(), p.n + a * rn + noise(), p.h - 0.04 * f * bowl + noise()];
+    };
+    const tri = triangulatePlan(pts.map((p) => ({ code: p.code, east: p.e, north: p.n })));
+    if (tri.status !== "ok") throw new Error(tri.message);
+    const els = await c.query<{ id: number; name: string }>(
+      `INSERT INTO "Element"("siteId", name, kind, mode, "pointCodes", source, "minAngleDeg")
+       SELECT $1, n, 'triangle', 'plan', string_to_array(pc, ' '), 'triangulation', a FROM unnest($2::text[], $3::text[], $4::float8[]) AS x(n, pc, a) RETURNING id, name`,
+      [siteId, `{${tri.triangles.map((t) => `"${t.id}"`).join(",")}}`, `{${tri.triangles.map((t) => `"${t.codes.join(" ")}"`).join(",")}}`, fl(tri.triangles.map((t) => t.minAngleDeg))],
+    );
+    const elId = new Map(els.rows.map((r) => [r.name, r.id]));
+    const triangles = tri.triangles;
+    const nT = triangles.length;
+    const pIndex = new Map(pts.map((p, i) => [p.code, i]));
+    log(`${nT} triangles`);
+
+    const CHUNK = 60;
+    let refXYAll: Float64Array | null = null;
+    let results = 0;
+    const sig = new Float64Array(6 * nT).fill(0.001);
+    for (let k0 = 0; k0 < epochs.length; k0 += CHUNK) {
+      const k1 = Math.min(epochs.length, k0 + CHUNK);
+      const obsPid: number[] = [];
+      const obsEid: number[] = [];
+      const oe: number[] = [];
+      const on: number[] = [];
+      const oh: number[] = [];
+      const cur = new Float64Array(6 * nT * (k1 - k0));
+      const xy = new Float64Array(2 * pts.length);
+      for (let k = k0; k < k1; k++) {
+        pts.forEach((p, i) => {
+          const [e, n, h] = coords(p, k);
+          xy[2 * i] = e;
+          xy[2 * i + 1] = n;
+          obsPid.push(idOf.get(p.code)!);
+          obsEid.push(epochs[k].id);
+          oe.push(e);
+          on.push(n);
+          oh.push(h);
+        });
+        const slot = (k - k0) * nT;
+        triangles.forEach((t, ti) =>
+          t.codes.forEach((code, v) => {
+            const pi = pIndex.get(code)!;
+            cur[6 * (slot + ti) + 2 * v] = xy[2 * pi];
+            cur[6 * (slot + ti) + 2 * v + 1] = xy[2 * pi + 1];
+          }),
+        );
+        if (k === 0) refXYAll = cur.slice(0, 6 * nT);
+      }
+      await c.query(
+        `INSERT INTO "Observation"("pointId", "epochId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight")
+         SELECT p, e, x, y, z, 0.001, 0.001, 0.0015 FROM unnest($1::int[], $2::int[], $3::float8[], $4::float8[], $5::float8[]) AS t(p, e, x, y, z)`,
+        [`{${obsPid.join(",")}}`, `{${obsEid.join(",")}}`, fl(oe), fl(on), fl(oh)],
+      );
+      const nE = k1 - k0;
+      const refXY = new Float64Array(6 * nT * nE);
+      for (let s = 0; s < nE; s++) refXY.set(refXYAll!, 6 * nT * s);
+      const sigmaCur = new Float64Array(6 * nT * nE).fill(0.001);
+      // The kernel's layout takes one reference per triangle; run each epoch as its own batch of nT.
+      const rows = { el: [] as number[], ep: [] as number[], time: [] as string[], st: [] as string[], gMax: [] as number[], gMin: [] as number[], sh: [] as number[], ar: [] as number[], rot: [] as number[], az: [] as (number | null)[], sgMax: [] as number[], sgMin: [] as number[], ssh: [] as number[], sar: [] as number[] };
+      const out = createTriangleBatchOut(nT, true);
+      for (let s = 0; s < nE; s++) {
+        computeTriangleBatch({ refXY: refXYAll!, curXY: cur.subarray(6 * nT * s, 6 * nT * (s + 1)), sigmaRef: sig, sigmaCur: sigmaCur.subarray(0, 6 * nT) }, out);
+        const e = epochs[k0 + s];
+        for (let t = 0; t < nT; t++) {
+          if (out.status[t] !== BATCH_OK) continue;
+          rows.el.push(elId.get(triangles[t].id)!);
+          rows.ep.push(e.id);
+          rows.time.push(e.time.toISOString());
+          rows.st.push("ok");
+          rows.gMax.push(out.greenMax[t]);
+          rows.gMin.push(out.greenMin[t]);
+          rows.sh.push(out.maxShear[t]);
+          rows.ar.push(out.arealStrain[t]);
+          rows.rot.push(out.rotationDeg[t]);
+          rows.az.push(Number.isNaN(out.azimuthMaxDeg[t]) ? null : out.azimuthMaxDeg[t]);
+          rows.sgMax.push((out.sigmaGreenMax as Float64Array)[t]);
+          rows.sgMin.push((out.sigmaGreenMin as Float64Array)[t]);
+          rows.ssh.push((out.sigmaMaxShear as Float64Array)[t]);
+          rows.sar.push((out.sigmaArealStrain as Float64Array)[t]);
+        }
+      }
+      await c.query(
+        `INSERT INTO "ElementResult"("elementId", "epochId", "referenceEpochId", time, status, "greenMax", "greenMin", "maxShear", "arealStrain", "rotationDeg", "azimuthMaxDeg",
+           "sigmaGreenMax", "sigmaGreenMin", "sigmaMaxShear", "sigmaArealStrain")
+         SELECT el, ep, $15, tm, st, a, b, c2, d, r, az, s1, s2, s3, s4
+           FROM unnest($1::int[], $2::int[], $3::timestamptz[], $4::text[], $5::float8[], $6::float8[], $7::float8[], $8::float8[], $9::float8[], $10::float8[], $11::float8[], $12::float8[], $13::float8[], $14::float8[])
+             AS t(el, ep, tm, st, a, b, c2, d, r, az, s1, s2, s3, s4)`,
+        [`{${rows.el.join(",")}}`, `{${rows.ep.join(",")}}`, `{${rows.time.join(",")}}`, `{${rows.st.join(",")}}`, fl(rows.gMax), fl(rows.gMin), fl(rows.sh), fl(rows.ar), fl(rows.rot), fl(rows.az), fl(rows.sgMax), fl(rows.sgMin), fl(rows.ssh), fl(rows.sar), epochs[0].id],
+      );
+      results += rows.el.length;
+    }
+    log(`${results} element results`);
+    await c.query(`ANALYZE`);
+
+    // An engineer with a session (the benchmark measures the page, not the sign-in).
+    const email = "bench.engineer@example.org";
+    const password = "bench-password-1";
+    const bcrypt = (await import("bcryptjs")).default;
+    const user = await c.query<{ id: number }>(`INSERT INTO "User"(email, name, "passwordHash") VALUES ($1, 'Bench Engineer', $2) RETURNING id`, [email, await bcrypt.hash(password, 4)]);
+    await c.query(`INSERT INTO "Membership"("userId", "siteId", role) VALUES ($1, $2, 'engineer')`, [user.rows[0].id, siteId]);
+    const secret = newSecret("eps");
+    await c.query(`INSERT INTO "Session"(id, "userId", "expiresAt") VALUES ($1, $2, now() + interval '1 day')`, [hashSecret(secret), user.rows[0].id]);
+    return { siteId, slug, cookie: secret, email, password, points: pts.length, epochs: epochs.length, elements: nT, results };
+  } finally {
+    await c.end();
+  }
+}
+
+function freePort(): Promise<number> {
+  return new Promise((ok) => {
+    const s = createServer();
+    s.listen(0, "127.0.0.1", () => {
+      const a = s.address();
+      s.close(() => ok(typeof a === "object" && a ? a.port : 0));
+    });
+  });
+}
+
+async function main(): Promise<void> {
+  const args = parseArgs(process.argv.slice(2));
+  const say = (m: string) => {
+    if (!args.json) console.log(m);
+    else console.error(m);
+  };
+  if (args.build) ensureBuild();
+  const db = await createTestDatabase("bench");
+  let server: ChildProcess | null = null;
+  try {
+    const t0 = Date.now();
+    const site = await buildSyntheticSite(db.url, { points: args.points, epochs: args.epochs, log: say });
+    say(`data ready in ${((Date.now() - t0) / 1000).toFixed(1)} s`);
+    const port = await freePort();
+    const baseUrl = `http://127.0.0.1:${port}`;
+    server = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-p", String(port), "-H", "127.0.0.1"], {
+      env: { ...process.env, DATABASE_URL: db.url, NEXT_TELEMETRY_DISABLED: "1" },
+      stdio: ["ignore", "ignore", "inherit"],
+    });
+    for (let i = 0; ; i++) {
+      try {
+        if ((await fetch(`${baseUrl}/api/health`)).ok) break;
+      } catch {
+        /* starting */
+      }
+      if (i > 300) throw new Error("next start did not come up");
+      await new Promise((r) => setTimeout(r, 200));
+    }
+    if (args.keep) {
+      const stop = () => {
+        server?.kill("SIGTERM");
+        void db.drop().finally(() => process.exit(0));
+      };
+      process.on("SIGTERM", stop);
+      process.on("SIGINT", stop);
+      console.log(JSON.stringify({ baseUrl, databaseUrl: db.url, cookie: `epochal_session=${site.cookie}`, email: site.email, password: site.password, slug: site.slug, serverPid: server.pid }));
+      await new Promise(() => undefined);
+    }
+    const executablePath = process.env.EPOCHAL_CHROMIUM ?? "/usr/bin/chromium";
+    if (!existsSync(executablePath)) throw new Error(`no Chromium at ${executablePath}`);
+    const browser = await chromium.launch({ executablePath, args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"] });
+    const samples: number[] = [];
+    try {
+      for (let run = 0; run < args.runs + 1; run++) {
+        const ctx = await browser.newContext({ viewport: { width: 1280, height: 800 } });
+        await ctx.addCookies([{ name: "epochal_session", value: site.cookie, url: baseUrl }]);
+        const page = await ctx.newPage();
+        let inflight = 0;
+        let lastDone = 0;
+        page.on("request", () => (inflight += 1));
+        const done = () => {
+          inflight -= 1;
+          lastDone = Date.now();
+        };
+        page.on("requestfinished", done);
+        page.on("requestfailed", done);
+        const start = Date.now();
+        await page.goto(`${baseUrl}/sites/${site.slug}`, { waitUntil: "commit" });
+        await page.waitForSelector('section.plan[data-ready="true"] svg .elements polygon', { timeout: 60_000 });
+        const drawn = Date.now();
+        while (inflight > 0) await new Promise((r) => setTimeout(r, 5));
+        const ms = Math.max(drawn, lastDone) - start;
+        if (run > 0) samples.push(ms);
+        say(`run ${run}${run === 0 ? " (warm-up)" : ""}: ${ms} ms`);
+        await ctx.close();
+      }
+    } finally {
+      await browser.close();
+    }
+    samples.sort((a, b) => a - b);
+    const median = samples[Math.floor(samples.length / 2)];
+    const result = { sitePageReadyMs: median, samplesMs: samples, points: site.points, epochs: site.epochs, elements: site.elements, elementResults: site.results };
+    if (args.json) console.log(JSON.stringify(result));
+    else console.log(`site page ready (median of ${samples.length}): ${median} ms  [${samples.join(", ")}]`);
+  } finally {
+    server?.kill("SIGTERM");
+    await new Promise((r) => setTimeout(r, 300));
+    await db.drop();
+  }
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  main().catch((err) => {
+    console.error(err);
+    process.exit(1);
+  });
+}
