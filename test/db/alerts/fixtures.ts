@@ -126,3 +126,14 @@ export async function waitFor<T>(what: string, fn: () => Promise<T | null | unde
     await new Promise((r) => setTimeout(r, 200));
   }
 }
+
+/** The decoded Subject header of a received mail (RFC 2047 encoded words, folded lines). */
+export function mailSubject(raw: string): string {
+  const head = raw.split(/\r?\n\r?\n/)[0].replace(/\r?\n[ \t]+/g, " ");
+  const line = /^Subject: (.*)$/im.exec(head)?.[1] ?? "";
+  return line.replace(/\?=\s+=\?/g, "?==?").replace(/=\?UTF-8\?([QB])\?(.*?)\?=/gi, (_m, enc: string, text: string) => {
+    if (enc.toUpperCase() === "B") return Buffer.from(text, "base64").toString("utf8");
+    const bytes = text.replace(/_/g, " ").replace(/=([0-9A-F]{2})/gi, (_x, h: string) => String.fromCharCode(parseInt(h, 16)));
+    return Buffer.from(bytes, "latin1").toString("utf8");
+  });
+}
