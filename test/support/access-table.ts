@@ -108,7 +108,46 @@ export const ACCESS_TABLE: AccessRow[] = [
   { route: "/api/v1/sites/[slug]/elements/[id]", method: "DELETE", access: "manage-elements", params: () => ({ id: "999999999" }), ok: notDenied },
   { route: "/api/v1/sites/[slug]/elements/[id]/series", method: "GET", access: "read", params: () => ({ id: "999999999" }), ok: notDenied },
   { route: "/api/v1/sites/[slug]/elements/[id]/trend", method: "GET", access: "read", params: () => ({ id: "999999999" }), ok: notDenied },
+  // Trigger rules, alerts, outbox (issue 6, alerting).
+  { route: "/api/v1/rule-presets", method: "GET", access: "user" },
+  { route: "/api/v1/sites/[slug]/rules", method: "GET", access: "read" },
+  {
+    route: "/api/v1/sites/[slug]/rules",
+    method: "POST",
+    access: "manage-rules",
+    params: async (fx) => ((alertingFixtureElement = await alertingTriangle(fx)), {}),
+    body: (fx) => ({ name: fx.unique("rule"), preset: "building-tensile-strain", elementIds: [alertingFixtureElement] }),
+  },
+  { route: "/api/v1/sites/[slug]/rules/[id]", method: "GET", access: "read", params: async (fx) => ({ id: String((await alertingFixture(fx)).ruleId) }) },
+  { route: "/api/v1/sites/[slug]/rules/[id]", method: "PATCH", access: "manage-rules", params: async (fx) => ({ id: String((await alertingFixture(fx)).ruleId) }), body: () => ({ enabled: false }) },
+  { route: "/api/v1/sites/[slug]/alerts", method: "GET", access: "read", query: "state=all" },
+  { route: "/api/v1/sites/[slug]/alerts/[id]", method: "GET", access: "read", params: async (fx) => ({ id: String((await alertingFixture(fx)).alertId) }) },
+  {
+    route: "/api/v1/sites/[slug]/alerts/[id]/acknowledge",
+    method: "POST",
+    access: "acknowledge",
+    params: async (fx) => ({ id: String((await alertingFixture(fx)).alertId) }),
+    body: () => ({ comment: "access test: seen" }),
+  },
+  { route: "/api/v1/sites/[slug]/outbox", method: "GET", access: "read" },
 ];
+
+// Alerting fixtures: a triangle, a rule on it and an open alert (fresh for each call).
+let alertingFixtureElement = 0;
+let alertingEpochs = 0;
+async function alertingTriangle(fx: AccessFixture): Promise<number> {
+  const el = await fx.db.element.create({ data: { siteId: fx.site.id, name: fx.unique("tri"), kind: "triangle", mode: "plan", pointCodes: ["AT1", "AT2", "AT3"] } });
+  return el.id;
+}
+async function alertingFixture(fx: AccessFixture): Promise<{ ruleId: number; alertId: number }> {
+  const elementId = await alertingTriangle(fx);
+  const rule = await fx.db.triggerRule.create({ data: { siteId: fx.site.id, name: fx.unique("rule"), quantity: "greenMax", elementIds: [elementId], reviewLevel: 0.0005, alertLevel: 0.00075, limitLevel: 0.0015 } });
+  const epoch = await fx.db.epoch.create({ data: { siteId: fx.site.id, time: new Date(Date.UTC(2002, 0, 1) + ++alertingEpochs * 1000), contentHash: fx.unique("alert-epoch") } });
+  const alert = await fx.db.alert.create({
+    data: { siteId: fx.site.id, ruleId: rule.id, elementId, level: "review", peakLevel: "review", openedAt: epoch.time, openedEpochId: epoch.id, lastEpochId: epoch.id, value: 0.0006 },
+  });
+  return { ruleId: rule.id, alertId: alert.id };
+}
 
 // ---------------------------------------------------------------------------------------------
 // Callers and the expected outcome: shared by the in-process test and any HTTP runner.
