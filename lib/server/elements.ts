@@ -5,7 +5,7 @@
  * epoch; re-baselining: every epoch since the new reference, keeping the rows against the old one).
  * Observations are never written here. Deleting an element disables it; its results stay.
  */
-import "server-only";
+// No "server-only" marker: the benchmark and the CLI import this module outside Next.js too.
 import type { Db } from "./db/client.ts";
 import type { Actor, SiteRow } from "./http/route.ts";
 import { AppError } from "./errors.ts";

@@ -9,7 +9,7 @@
  * raw query that returns the three needed columns as packed float8 arrays (one row), decoded into
  * Float64Arrays, so a year of 15-minute epochs costs a few milliseconds rather than 35,040 row objects.
  */
-import "server-only";
+// No "server-only" marker: the benchmark and the CLI import this module outside Next.js too.
 import { Prisma } from "./db/generated/client.ts";
 import { DateTime } from "luxon";
 import type { Db } from "./db/client.ts";

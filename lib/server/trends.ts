@@ -4,7 +4,7 @@
  * the quantity), and the inverse-velocity forecast for accelerating movement. Every part carries a
  * caution; none is presented as a certainty.
  */
-import "server-only";
+// No "server-only" marker: the benchmark and the CLI import this module outside Next.js too.
 import type { Db } from "./db/client.ts";
 import type { SiteRow } from "./http/route.ts";
 import { AppError } from "./errors.ts";

@@ -66,6 +66,28 @@ async function freshToken(fx: AccessFixture): Promise<string> {
   return String(t.id);
 }
 
+/** Points AT1–AT3 and one epoch observing them on the fixture site (idempotent). */
+async function elementFixture(fx: AccessFixture): Promise<void> {
+  const ids: number[] = [];
+  for (const [i, code] of ["AT1", "AT2", "AT3"].entries()) {
+    const p = await fx.db.point.upsert({ where: { siteId_code: { siteId: fx.site.id, code } }, create: { siteId: fx.site.id, code }, update: {}, select: { id: true } });
+    ids[i] = p.id;
+  }
+  const time = new Date("2001-02-03T04:05:06Z");
+  if (await fx.db.epoch.findFirst({ where: { siteId: fx.site.id, time }, select: { id: true } })) return;
+  const e = await fx.db.epoch.create({ data: { siteId: fx.site.id, time, contentHash: fx.unique("access-epoch") } });
+  const xy = [[0, 0], [10, 0], [5, 8.66]];
+  await fx.db.observation.createMany({
+    data: ids.map((pointId, i) => ({ epochId: e.id, pointId, east: xy[i][0], north: xy[i][1], height: 0, sigmaEast: 0.001, sigmaNorth: 0.001, sigmaHeight: 0.0015 })),
+  });
+}
+
+async function freshElement(fx: AccessFixture): Promise<string> {
+  await elementFixture(fx);
+  const el = await fx.db.element.create({ data: { siteId: fx.site.id, name: fx.unique("el"), kind: "baseline", mode: "slope", pointCodes: ["AT1", "AT2"] } });
+  return String(el.id);
+}
+
 export const ACCESS_TABLE: AccessRow[] = [
   { route: "/api/health", method: "GET", access: "public" },
 
@@ -97,17 +119,23 @@ export const ACCESS_TABLE: AccessRow[] = [
   { route: "/api/v1/sites/[slug]/epochs", method: "GET", access: "read", ok: notDenied },
   { route: "/api/v1/sites/[slug]/epochs", method: "POST", access: "ingest", ok: notDenied, note: "owner: add a minimal valid epoch body" },
   { route: "/api/v1/sites/[slug]/points", method: "GET", access: "read", ok: notDenied },
-  { route: "/api/v1/sites/[slug]/points/[code]/series", method: "GET", access: "read", params: () => ({ code: "P1" }), ok: notDenied },
   { route: "/api/v1/sites/[slug]/field", method: "GET", access: "read", ok: notDenied },
-  { route: "/api/v1/sites/[slug]/elements", method: "GET", access: "read", ok: notDenied },
-  { route: "/api/v1/sites/[slug]/elements", method: "POST", access: "manage-elements", ok: notDenied },
-  { route: "/api/v1/sites/[slug]/elements/preview-triangulation", method: "POST", access: "manage-elements", ok: notDenied },
-  // A missing element id (404) still proves the caller got past the permission check.
-  { route: "/api/v1/sites/[slug]/elements/[id]", method: "GET", access: "read", params: () => ({ id: "999999999" }), ok: notDenied },
-  { route: "/api/v1/sites/[slug]/elements/[id]", method: "PATCH", access: "manage-elements", params: () => ({ id: "999999999" }), ok: notDenied },
-  { route: "/api/v1/sites/[slug]/elements/[id]", method: "DELETE", access: "manage-elements", params: () => ({ id: "999999999" }), ok: notDenied },
-  { route: "/api/v1/sites/[slug]/elements/[id]/series", method: "GET", access: "read", params: () => ({ id: "999999999" }), ok: notDenied },
-  { route: "/api/v1/sites/[slug]/elements/[id]/trend", method: "GET", access: "read", params: () => ({ id: "999999999" }), ok: notDenied },
+  // Elements, series and trends (issue 6): valid requests on the fixture points AT1–AT3 and epoch.
+  { route: "/api/v1/sites/[slug]/points/[code]/series", method: "GET", access: "read", params: async (fx) => (await elementFixture(fx), { code: "AT1" }), query: "component=d2D" },
+  { route: "/api/v1/sites/[slug]/elements", method: "GET", access: "read" },
+  {
+    route: "/api/v1/sites/[slug]/elements",
+    method: "POST",
+    access: "manage-elements",
+    params: async (fx) => (await elementFixture(fx), {}),
+    body: (fx) => ({ name: fx.unique("el"), kind: "baseline", points: ["AT1", "AT2"] }),
+  },
+  { route: "/api/v1/sites/[slug]/elements/preview-triangulation", method: "POST", access: "manage-elements", params: async (fx) => (await elementFixture(fx), {}), body: () => ({}) },
+  { route: "/api/v1/sites/[slug]/elements/[id]", method: "GET", access: "read", params: async (fx) => ({ id: await freshElement(fx) }) },
+  { route: "/api/v1/sites/[slug]/elements/[id]", method: "PATCH", access: "manage-elements", params: async (fx) => ({ id: await freshElement(fx) }), body: () => ({ label: "access test" }) },
+  { route: "/api/v1/sites/[slug]/elements/[id]", method: "DELETE", access: "manage-elements", params: async (fx) => ({ id: await freshElement(fx) }) },
+  { route: "/api/v1/sites/[slug]/elements/[id]/series", method: "GET", access: "read", params: async (fx) => ({ id: await freshElement(fx) }), query: "quantity=engineering" },
+  { route: "/api/v1/sites/[slug]/elements/[id]/trend", method: "GET", access: "read", params: async (fx) => ({ id: await freshElement(fx) }), query: "quantity=engineering" },
   // Trigger rules, alerts, outbox (issue 6, alerting).
   { route: "/api/v1/rule-presets", method: "GET", access: "user" },
   { route: "/api/v1/sites/[slug]/rules", method: "GET", access: "read" },

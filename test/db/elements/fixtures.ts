@@ -58,12 +58,12 @@ export async function sessionFor(siteId: number, role: Role | "global-admin"): P
   return `${SESSION_COOKIE}=${secret}`;
 }
 
-type Handler = (req: Request, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>;
+type Handler<P> = (req: Request, ctx: { params: Promise<P> }) => Promise<Response>;
 
 /** Calls a route handler as Next.js would, with the cookie and a same-origin header. */
-export async function call(
-  handler: Handler,
-  opts: { method: string; path: string; params: Record<string, string>; cookie: string; body?: unknown; query?: Record<string, string | number> },
+export async function call<P>(
+  handler: Handler<P>,
+  opts: { method: string; path: string; params: P; cookie: string; body?: unknown; query?: Record<string, string | number> },
 ): Promise<{ status: number; json: Record<string, unknown> }> {
   const url = new URL(`http://epochal.test${opts.path}`);
   for (const [k, v] of Object.entries(opts.query ?? {})) url.searchParams.set(k, String(v));
