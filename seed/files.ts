@@ -50,13 +50,26 @@ export function timeStamp(iso: string): string {
   return iso.slice(0, 16).replace(/[-:]/g, "") + "Z";
 }
 
+function hasSigma(epoch: ScenarioEpoch): boolean {
+  return epoch.observations.some((o) => o.sigmaEast !== undefined);
+}
+
+/** σ keys of an observation as the JSON and GeoJSON formats spell them (absent when not given). */
+function sigmaKeys(o: ScenarioEpoch["observations"][number]): Record<string, number> {
+  return o.sigmaEast === undefined ? {} : { sigma_east: o.sigmaEast, sigma_north: o.sigmaNorth ?? o.sigmaEast, sigma_height: o.sigmaHeight ?? o.sigmaEast };
+}
+
 export function epochCsv(epoch: ScenarioEpoch): string {
-  const rows = epoch.observations.map((o) => `${o.point},${o.east.toFixed(4)},${o.north.toFixed(4)},${o.height.toFixed(4)},${epoch.time}`);
-  return ["point,east,north,height,time", ...rows].join("\n") + "\n";
+  const withSigma = hasSigma(epoch);
+  const sig = (v: number | undefined) => (v === undefined ? "" : String(v));
+  const rows = epoch.observations.map(
+    (o) => `${o.point},${o.east.toFixed(4)},${o.north.toFixed(4)},${o.height.toFixed(4)},${epoch.time}${withSigma ? `,${sig(o.sigmaEast)},${sig(o.sigmaNorth)},${sig(o.sigmaHeight)}` : ""}`,
+  );
+  return [`point,east,north,height,time${withSigma ? ",sigma_east,sigma_north,sigma_height" : ""}`, ...rows].join("\n") + "\n";
 }
 
 export function epochJson(epoch: ScenarioEpoch): string {
-  return JSON.stringify({ time: epoch.time, observations: epoch.observations.map((o) => ({ point: o.point, east: o.east, north: o.north, height: o.height })) }, null, 1) + "\n";
+  return JSON.stringify({ time: epoch.time, observations: epoch.observations.map((o) => ({ point: o.point, east: o.east, north: o.north, height: o.height, ...sigmaKeys(o) })) }, null, 1) + "\n";
 }
 
 export function epochGeoJson(epoch: ScenarioEpoch, frame: EnuFrame): string {
@@ -65,7 +78,7 @@ export function epochGeoJson(epoch: ScenarioEpoch, frame: EnuFrame): string {
     return {
       type: "Feature",
       geometry: { type: "Point", coordinates: [Number(g.lonDeg.toFixed(10)), Number(g.latDeg.toFixed(10)), Number(g.heightM.toFixed(4))] },
-      properties: { point: o.point, time: epoch.time },
+      properties: { point: o.point, time: epoch.time, ...sigmaKeys(o) },
     };
   });
   return JSON.stringify({ type: "FeatureCollection", features }) + "\n";

@@ -28,11 +28,13 @@
  *   prediction", Tunnelling '82, IMM: the sink-point relation, commonly used).
  * - Buildings follow the greenfield movement at their plan position (a conservative assumption,
  *   common practice in damage assessment, e.g. Mair, Taylor & Burland 1996).
+ * - A pumping test at the east end (days 42–75): a small settlement bowl that mostly recovers.
  * - Wall crest: thermal expansion of 40 m bays about their centres (α = 10 µε/K for concrete) and
  *   out-of-plane bowing, with an annual and a daily temperature cycle.
  * - An accelerating zone at the north-west corner over the last three weeks: velocity ∝ 1/(t_f − t),
  *   the behaviour that the inverse-velocity method (Fukuzono 1985) extrapolates to t_f.
- * - Survey noise N(0, σ) at the site's σ (1 mm horizontal, 1.5 mm vertical), a few missed readings,
+ * - Survey noise N(0, σ) at the site's σ (1 mm horizontal, 1.5 mm vertical; the baseline epoch is the
+ *   mean of four sets, σ/2, stated per observation), a few missed readings,
  *   a crane blocking one gable for a day, and one ground target knocked and replaced under a new code.
  */
 import { createRandom, type Random } from "./random.ts";
@@ -85,6 +87,10 @@ export interface ScenarioObservation {
   east: number;
   north: number;
   height: number;
+  /** Only on the baseline epoch (the mean of several sets, so more precise than the site's default). */
+  sigmaEast?: number;
+  sigmaNorth?: number;
+  sigmaHeight?: number;
 }
 
 export interface ScenarioEpoch {
@@ -138,7 +144,7 @@ export const GABLES = {
   "house-12": { label: "No. 12", east: 4186, southNorth: 7138, northNorth: 7154, prefix: "H12" },
   "house-26": { label: "No. 26", east: 4234, southNorth: 7138, northNorth: 7154, prefix: "H26" },
 } as const;
-const GABLE_ROWS_M = [1.0, 5.0, 9.0];
+const GABLE_ROWS_M = [1.0, 6.0, 11.0];
 const GABLE_COLUMNS = 4;
 export const WALL = { north: 7086, westEast: 4120, spacingM: 10, count: 17, crestHeight: 46.8, joints: [4165, 4205, 4245] } as const;
 
@@ -147,10 +153,10 @@ export const TROUGH = {
   /** i = K·z0 (Peck 1969; K ≈ 0.5 for clays). */
   k: 0.5,
   /** S_max per metre of excavation depth: about 0.1 % of depth at the virtual centreline. */
-  settlementPerDepth: 0.00105,
+  settlementPerDepth: 0.0016,
   /** Final formation depth at the west and east ends (m); the east end is a shallower concourse. */
   finalDepthWestM: 23,
-  finalDepthEastM: 17,
+  finalDepthEastM: 15,
   /** The east end lags the west end by this many days (the dig advances in bays). */
   lagDaysEast: 20,
 };
@@ -176,7 +182,25 @@ export const ACCELERATION = {
   startsBeforeEndDays: 21,
   failureAfterEndDays: 5,
   /** A in d = A·ln((t_f − t0)/(t_f − t)), metres (velocity A/(t_f − t)). */
-  amplitudeM: 0.006,
+  amplitudeM: 0.008,
+};
+
+/**
+ * A pumping test at the east end (days 42–52) draws the water table down: a settlement bowl that
+ * recovers mostly once pumping stops (days 52–75). Same Gaussian form and sink-point horizontal
+ * movement as the trough, centred on the well.
+ */
+export const DEWATERING = {
+  wellEast: 4252,
+  wellNorth: 7126,
+  iM: 10,
+  z0M: 15,
+  amplitudeM: 0.02,
+  /** Days: start, end of pumping, end of recovery; fraction that stays. */
+  startDays: 42,
+  stopDays: 52,
+  recoveredDays: 75,
+  residual: 0.15,
 };
 
 export const THERMAL = {
@@ -190,6 +214,12 @@ export const THERMAL = {
 };
 
 const MISS_PROBABILITY = 0.002;
+/**
+ * The first epoch is the baseline survey: the mean of four sets, so its σ is half the site's
+ * (σ/√4; common practice is to take the baseline from several readings, since every later strain is
+ * measured against it).
+ */
+export const BASELINE_SETS = 4;
 
 function interpolate(table: readonly [number, number][], x: number): number {
   if (x <= table[0][0]) return table[0][1];
@@ -225,6 +255,24 @@ function troughDisplacement(e: number, n: number, tDays: number): [number, numbe
   const s = sMaxM * Math.exp(-(y * y) / (2 * iM * iM));
   const h = (y * s) / z0M;
   return [(-h * de) / y, (-h * dn) / y, -s];
+}
+
+function dewateringDisplacement(e: number, n: number, tDays: number): [number, number, number] {
+  const d = DEWATERING;
+  if (tDays <= d.startDays) return [0, 0, 0];
+  const a =
+    tDays <= d.stopDays
+      ? (tDays - d.startDays) / (d.stopDays - d.startDays)
+      : tDays <= d.recoveredDays
+        ? 1 - ((1 - d.residual) * (tDays - d.stopDays)) / (d.recoveredDays - d.stopDays)
+        : d.residual;
+  const de = e - d.wellEast;
+  const dn = n - d.wellNorth;
+  const r = Math.hypot(de, dn);
+  const s = a * d.amplitudeM * Math.exp(-(r * r) / (2 * d.iM * d.iM));
+  if (r === 0) return [0, 0, -s];
+  const h = (r * s) / d.z0M;
+  return [(-h * de) / r, (-h * dn) / r, -s];
 }
 
 function accelerationDisplacement(e: number, n: number, tDays: number, endDays: number): [number, number, number] {
@@ -274,7 +322,8 @@ export function modelDisplacement(p: Pick<ScenarioPoint, "east" | "north" | "gro
     return [u[0] + w[0], u[1] + w[1], u[2] + w[2]];
   }
   const a = accelerationDisplacement(p.east, p.north, tDays, endDays);
-  return [u[0] + a[0], u[1] + a[1], u[2] + a[2]];
+  const w = dewateringDisplacement(p.east, p.north, tDays);
+  return [u[0] + a[0] + w[0], u[1] + a[1] + w[1], u[2] + a[2] + w[2]];
 }
 
 function groundHeight(e: number, n: number): number {
@@ -350,7 +399,7 @@ function referencePoints(): ScenarioPoint[] {
   return spots.map(([e, n, h, note], k) => ({ code: `REF${k + 1}`, kind: "prism" as const, group: "reference" as const, isReference: true, note: `Stable reference: ${note}`, east: e, north: n, height: h }));
 }
 
-/** Hand-made gable triangles (surface mode) on a 4 × 3 grid of targets, all with angles ≥ 26°. */
+/** Hand-made gable elements on a 4 × 3 grid of targets: row baselines and surface triangles (angles ≥ 26°). */
 function gableElements(group: "house-12" | "house-26"): ScenarioElement[] {
   const g = GABLES[group];
   const id = (c: number, r: number) => `${g.prefix}-${pad(r * GABLE_COLUMNS + c + 1, 2)}`;
@@ -363,14 +412,23 @@ function gableElements(group: "house-12" | "house-26"): ScenarioElement[] {
     ["far half, upper", [[1, 0], [3, 2], [1, 2]]],
   ];
   const name = g.label.replace(/[^0-9A-Za-z]/g, "");
-  return tri.map(([what, v], k) => ({
+  // Horizontal baselines along each row of targets: the horizontal strain that damage criteria use.
+  const rows: ScenarioElement[] = GABLE_ROWS_M.map((h, r) => ({
+    name: `${name}-B${r + 1}`,
+    label: `${g.label} gable, row ${r + 1} (${h} m up), full width`,
+    kind: "baseline" as const,
+    mode: "horizontal" as const,
+    pointCodes: [id(0, r), id(GABLE_COLUMNS - 1, r)],
+    structure: group,
+  }));
+  return [...rows, ...tri.map(([what, v], k) => ({
     name: `${name}-T${k + 1}`,
     label: `${g.label} gable, ${what}`,
     kind: "triangle" as const,
     mode: "surface" as const,
     pointCodes: v.map(([c, r]) => id(c, r)),
     structure: group,
-  }));
+  }))];
 }
 
 function wallElements(points: ScenarioPoint[]): ScenarioElement[] {
@@ -468,7 +526,10 @@ export function generateScenario(opts: ScenarioOptions = {}): Scenario {
       let u = modelDisplacement(p, tDays, endDays, dT);
       if (p === replacement) u = [u[0] - replacementBase[0], u[1] - replacementBase[1], u[2] - replacementBase[2]];
       if (p === knocked && k >= knockedIndex) u = [u[0] + jump[0], u[1] + jump[1], u[2] + jump[2]];
-      observations.push({ point: p.code, east: round4(p.east + u[0] + ne), north: round4(p.north + u[1] + nn), height: round4(p.height + u[2] + nh) });
+      const f = k === 0 ? 1 / Math.sqrt(BASELINE_SETS) : 1;
+      const o: ScenarioObservation = { point: p.code, east: round4(p.east + u[0] + f * ne), north: round4(p.north + u[1] + f * nn), height: round4(p.height + u[2] + f * nh) };
+      if (k === 0) Object.assign(o, { sigmaEast: f * sh, sigmaNorth: f * sh, sigmaHeight: f * sv });
+      observations.push(o);
     }
     epochs.push({ time: isoUtc(timeS), observations });
   }

@@ -24,6 +24,9 @@ describe("scenarioFiles", () => {
     if (!r.ok) throw new Error(JSON.stringify(r.errors));
     expect(r.rows).toHaveLength(sc.epochs[1].observations.length);
     expect(r.rows[3]).toMatchObject({ ...sc.epochs[1].observations[3], time: sc.epochs[1].time });
+    const first = parseEpochCsv(epochs[0].text);
+    if (!first.ok) throw new Error(JSON.stringify(first.errors));
+    expect(first.rows[0]).toMatchObject({ sigmaEast: sc.epochs[0].observations[0].sigmaEast, sigmaHeight: sc.epochs[0].observations[0].sigmaHeight });
   });
 
   it("scenarioFiles(json) round-trips through parseEpochJsonText", () => {

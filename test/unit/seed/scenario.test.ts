@@ -108,7 +108,8 @@ describe("generateScenario", () => {
     const tri = sc.elements.filter((e) => e.kind === "triangle");
     const base = sc.elements.filter((e) => e.kind === "baseline");
     expect(tri.length).toBe(12);
-    expect(base.length).toBe(16);
+    expect(base.length).toBe(22);
+    expect(base.filter((e) => e.structure === "wall").length).toBe(16);
     for (const e of tri) {
       expect(e.mode).toBe("surface");
       const [a, b, c] = e.pointCodes.map((code) => byCode.get(code)!);
@@ -126,7 +127,7 @@ describe("generateScenario", () => {
     }
     for (const e of base) {
       expect(e.mode).toBe("horizontal");
-      expect(e.pointCodes.every((c) => byCode.get(c)?.group === "wall")).toBe(true);
+      expect(e.pointCodes.every((c) => byCode.get(c)?.group === e.structure)).toBe(true);
     }
     expect(new Set(sc.elements.map((e) => e.name)).size).toBe(sc.elements.length);
   });
@@ -171,6 +172,12 @@ describe("scenario movements", () => {
     }
   });
 
+  it("the baseline epoch is the mean of four sets: σ halved and stated on each observation", () => {
+    const first = sc.epochs[0].observations;
+    expect(first.every((o) => o.sigmaEast === SITE.sigmaHM / 2 && o.sigmaNorth === SITE.sigmaHM / 2 && o.sigmaHeight === SITE.sigmaVM / 2)).toBe(true);
+    expect(sc.epochs[1].observations.every((o) => o.sigmaEast === undefined)).toBe(true);
+  });
+
   it("survey noise matches the site's σ: 1 mm horizontal, 1.5 mm vertical, within 3 %", () => {
     const startS = Date.parse(sc.epochs[0].time) / 1000;
     const re: number[] = [];
@@ -178,6 +185,7 @@ describe("scenario movements", () => {
     const rh: number[] = [];
     const skip = new Set(sc.points.filter((p) => p.note?.startsWith("Replaces")).flatMap((p) => [p.code, p.note!.split(" ")[1]]));
     sc.epochs.forEach((ep, k) => {
+      if (k === 0) return;
       const tDays = (k * CYCLE_S) / 86400;
       const dT = temperatureChangeK(startS + k * CYCLE_S, startS);
       for (const o of ep.observations) {
