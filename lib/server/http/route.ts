@@ -17,7 +17,10 @@ export type Actor =
 export type SiteRow = { id: number; slug: string; name: string; timeZone: string };
 
 type Params = Record<string, string | string[]>;
-type NextCtx<P> = { params: Promise<P> };
+// The context Next.js passes: its params hold the route's dynamic segments. Typed loosely on
+// purpose, so that tests may call a handler with `{ params: Promise.resolve({ slug }) }`; each
+// wrapper narrows it to the handler's own P (Next guarantees the segments of the folder path).
+type NextCtx = { params: Promise<Params> };
 
 export function readCookie(req: Request, name: string): string | null {
   const raw = req.headers.get("cookie");
@@ -111,9 +114,9 @@ export type SiteHandler<P> = (ctx: { req: Request; params: P; site: SiteRow; act
 
 /** A route under /api/v1/sites/{slug}/…: 401 without credentials, 404 unknown site, 403 without the permission. */
 export function siteRoute<P extends Params & { slug: string }>(permission: Permission, handler: SiteHandler<P>) {
-  return async (req: Request, ctx: NextCtx<P>): Promise<Response> => {
+  return async (req: Request, ctx: NextCtx): Promise<Response> => {
     try {
-      const params = await ctx.params;
+      const params = (await ctx.params) as P;
       const actor = await actorFromRequest(req);
       if (!actor) throw new AppError("unauthenticated", "Sign in or send `Authorization: Bearer <token>`.");
       assertSameOrigin(req, actor);
@@ -135,9 +138,9 @@ export type UserHandler<P> = (ctx: { req: Request; params: P; actor: Extract<Act
 
 /** A route for any signed-in user (tokens are refused); `adminOnly` requires a global administrator. */
 export function userRoute<P extends Params>(opts: { adminOnly?: boolean }, handler: UserHandler<P>) {
-  return async (req: Request, ctx: NextCtx<P>): Promise<Response> => {
+  return async (req: Request, ctx: NextCtx): Promise<Response> => {
     try {
-      const params = await ctx.params;
+      const params = (await ctx.params) as P;
       const actor = await actorFromRequest(req);
       if (!actor) throw new AppError("unauthenticated", "Sign in first.");
       if (actor.kind !== "user") throw new AppError("forbidden", "API tokens may not use this route.");
@@ -152,9 +155,9 @@ export function userRoute<P extends Params>(opts: { adminOnly?: boolean }, handl
 
 /** A route open to everyone (health, sign-in). Errors are still mapped. */
 export function publicRoute<P extends Params>(handler: (ctx: { req: Request; params: P }) => Promise<Response>) {
-  return async (req: Request, ctx: NextCtx<P>): Promise<Response> => {
+  return async (req: Request, ctx: NextCtx): Promise<Response> => {
     try {
-      return await handler({ req, params: await ctx.params });
+      return await handler({ req, params: (await ctx.params) as P });
     } catch (err) {
       return errorResponse(err);
     }
