@@ -85,6 +85,8 @@ export interface SubscriberOptions {
   receiveMaximum?: number;
   reconnectInitialMs?: number;
   reconnectMaxMs?: number;
+  /** Topic filter; default every site (`epochal/v1/sites/+/epochs`). Tests narrow it to one site. */
+  subscription?: string;
   /** Called after each message is done (tests, metrics). */
   onOutcome?: (outcome: HandleOutcome, msg: LiveMessage) => void;
 }
@@ -207,7 +209,7 @@ export function startMqttSubscriber(o: SubscriberOptions): LiveSubscriber {
     st.connectedSince = new Date().toISOString();
     // Reconnect delay: back to the start, unless we just dropped the connection over a failing message.
     client.options.reconnectPeriod = Math.min(maxMs, initialMs * 2 ** failureStreak);
-    client.subscribe(EPOCHS_SUBSCRIPTION, { qos: 1 }, (err, granted) => {
+    client.subscribe(o.subscription ?? EPOCHS_SUBSCRIPTION, { qos: 1 }, (err, granted) => {
       if (err) st.lastError = `subscribe: ${err.message}`;
       else if (granted?.some((g) => g.qos > 2)) st.lastError = `subscribe refused by the broker (reason ${granted.map((g) => g.qos).join(",")})`;
     });
