@@ -92,10 +92,11 @@ export function fitLinearTrend(tMs: Float64Array, y: Float64Array, originMs?: nu
   };
 }
 
-export type LevelCrossing =
+export type LevelCrossing = (
   | { level: number; status: "reached"; message: string }
   | { level: number; status: "projected"; timeMs: number; daysFromLast: number }
-  | { level: number; status: "not-approaching"; message: string };
+  | { level: number; status: "not-approaching"; message: string }
+) & { caution: string };
 
 /**
  * When the fitted line would reach each level. A level the trend value at the last point already
@@ -104,12 +105,13 @@ export type LevelCrossing =
  */
 export function levelCrossingTimes(trend: LinearTrendOk, levels: readonly number[]): LevelCrossing[] {
   const atLast = trend.intercept + trend.slopePerDay * ((trend.lastMs - trend.originMs) / MS_PER_DAY);
+  const caution = TREND_CAUTION;
   return levels.map((level): LevelCrossing => {
     const gap = level - atLast;
-    if (gap === 0 || (level >= 0 ? atLast >= level : atLast <= level)) return { level, status: "reached", message: "the trend is already at or past this level" };
-    if (Math.abs(trend.slopePerDay) <= trend.sigmaSlopePerDay) return { level, status: "not-approaching", message: "the slope is not distinguishable from zero" };
-    if (Math.sign(gap) !== Math.sign(trend.slopePerDay)) return { level, status: "not-approaching", message: "the trend moves away from this level" };
+    if (gap === 0 || (level >= 0 ? atLast >= level : atLast <= level)) return { level, status: "reached", message: "the trend is already at or past this level", caution };
+    if (Math.abs(trend.slopePerDay) <= trend.sigmaSlopePerDay) return { level, status: "not-approaching", message: "the slope is not distinguishable from zero", caution };
+    if (Math.sign(gap) !== Math.sign(trend.slopePerDay)) return { level, status: "not-approaching", message: "the trend moves away from this level", caution };
     const days = gap / trend.slopePerDay;
-    return { level, status: "projected", timeMs: trend.lastMs + days * MS_PER_DAY, daysFromLast: days };
+    return { level, status: "projected", timeMs: trend.lastMs + days * MS_PER_DAY, daysFromLast: days, caution };
   });
 }
