@@ -39,6 +39,15 @@ async function start(config: MailConfig): Promise<MailRuntime> {
   const boss = new PgBoss({ connectionString: databaseUrl(), schema: config.jobsSchema, max: 4, application_name: "epochal-jobs" });
   boss.on("error", (err) => console.error("epochal: job queue error", err));
   await boss.start();
+  try {
+    return await prepare(boss, config);
+  } catch (err) {
+    await boss.stop({ graceful: false, wait: true }).catch(() => undefined);
+    throw err;
+  }
+}
+
+async function prepare(boss: PgBoss, config: MailConfig): Promise<MailRuntime> {
   await boss.createQueue(MAIL_QUEUE, { name: MAIL_QUEUE, policy: "standard", retryLimit: config.retryLimit, retryDelay: config.retryDelayS, retryBackoff: true });
   await boss.createQueue(DIGEST_QUEUE, { name: DIGEST_QUEUE, policy: "short", retryLimit: 5, retryDelay: 60, retryBackoff: true });
   const transport = config.smtpUrl ? createMailTransport(config.smtpUrl) : null;
