@@ -202,6 +202,31 @@ export async function buildSyntheticSite(url: string, opts: { points: number; ep
       results += rows.el.length;
     }
     log(`${results} element results`);
+    // One rule on every element and an alert on the three most extended elements at the last epoch, with a mail in the outbox.
+    const last = epochs[epochs.length - 1];
+    const rule = await c.query<{ id: number }>(
+      `INSERT INTO "TriggerRule"("siteId", name, quantity, "elementIds", "reviewLevel", "alertLevel", "limitLevel", "responseReview", "responseAlert", "responseLimit")
+       VALUES ($1, 'Tension in the ground slab', 'greenMax', $2::int[], 0.00005, 0.0001, 0.0002, 'Check the next epoch', 'Walk the slab, photograph cracks', 'Stop excavation, call the engineer') RETURNING id`,
+      [siteId, `{${[...elId.values()].join(",")}}`],
+    );
+    const top = await c.query<{ elementId: number; greenMax: number; sigma: number }>(
+      `SELECT "elementId", "greenMax", "sigmaGreenMax" AS sigma FROM "ElementResult" WHERE "epochId" = $1 ORDER BY "greenMax" DESC LIMIT 3`,
+      [last.id],
+    );
+    for (const [i, t] of top.rows.entries()) {
+      const level = t.greenMax >= 0.0002 ? "limit" : t.greenMax >= 0.0001 ? "alert" : "review";
+      const a = await c.query<{ id: number }>(
+        `INSERT INTO "Alert"("siteId", "ruleId", "elementId", level, "peakLevel", "openedAt", "openedEpochId", "lastEpochId", value, sigma, "isSignificant")
+         VALUES ($1, $2, $3, $4, $4, $5, $6, $6, $7, $8, $9) RETURNING id`,
+        [siteId, rule.rows[0].id, t.elementId, level, last.time, last.id, t.greenMax, t.sigma, t.greenMax > 1.96 * t.sigma],
+      );
+      await c.query(`INSERT INTO "AlertEvent"("alertId", at, kind, level, value) VALUES ($1, $2, 'open', $3, $4)`, [a.rows[0].id, last.time, level, t.greenMax]);
+      if (i === 0)
+        await c.query(
+          `INSERT INTO "MailMessage"("siteId", "alertId", "idempotencyKey", recipients, subject, body, status) VALUES ($1, $2, $3, '{site.team@example.org}', $4, $5, 'outbox')`,
+          [siteId, a.rows[0].id, `bench-${a.rows[0].id}`, `[Epochal] ${level} on the bench site`, `Element ${t.elementId} reached ${level}.`],
+        );
+    }
     await c.query(`ANALYZE`);
 
     // An engineer with a session (the benchmark measures the page, not the sign-in).
