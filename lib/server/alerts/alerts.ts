@@ -7,6 +7,7 @@
  * Alert states shown: `watch` (uncleared, never yet significant: shown as "not significant"),
  * `open` (uncleared), `cleared`.
  */
+import "server-only";
 import { getDb, type Db } from "../db/client.ts";
 import { AppError } from "../errors.ts";
 import { recordAudit } from "../audit.ts";

@@ -2,6 +2,8 @@
  * Wires alerting into the ingest pipeline, once per process: `registerAlerting()` adds the
  * epochs-committed listener and starts the job queue and mail worker in the background. Call it from
  * any server module that stores epochs (the ingest routes); calling it again does nothing.
+ * During `next build` (NEXT_PHASE=phase-production-build) route modules are loaded to collect page
+ * data: the worker is not started then; it starts at the first committed epochs instead.
  */
 import { onEpochsCommitted, type EpochsCommitted } from "../pipeline.ts";
 import { runAlerting } from "./evaluate.ts";
@@ -19,6 +21,7 @@ export function registerAlerting(opts: { startWorker?: boolean } = {}): void {
   if (h[KEY]) return;
   h[KEY] = true;
   onEpochsCommitted(onCommitted);
-  if (opts.startWorker ?? true)
+  const building = process.env.NEXT_PHASE === "phase-production-build";
+  if (opts.startWorker ?? !building)
     startMailWorker().catch((err) => console.error("epochal: the mail worker did not start (it is retried at the next ingest)", err));
 }

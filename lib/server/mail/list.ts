@@ -1,4 +1,5 @@
 /** The mail record of a site: the outbox (no mail server) and the delivery status of sent mails. */
+import "server-only";
 import { getDb, type Db } from "../db/client.ts";
 import type { MailMessage } from "../db/generated/client.ts";
 
