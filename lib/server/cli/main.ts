@@ -14,6 +14,7 @@ const COMMANDS = {
   push: "Post epoch files to a server (HTTP or MQTT).",
   seed: "Write or load the demo scenario.",
   bench: "Run the benchmarks and print one table.",
+  worker: "Run the job queue and mail worker on its own (alert mails, digests).",
 } as const;
 
 type CommandName = keyof typeof COMMANDS;
