@@ -1,0 +1,313 @@
+/**
+ * Ingest benchmark (not a test): prints figures.
+ *
+ *   npx tsx test/bench/ingest.ts [--scale 0.1] [--json] [--live-posts 40] [--mode http|in-process]
+ *
+ * 1. Backfill: a year of 15-minute epochs (35,040) of 500 points = 17.5 M observations at scale 1,
+ *    as epoch CSV text in chunks of 100 epochs (the way `epochal push` sends it), parsed and stored by
+ *    the ingest service; measured side by side with PostgreSQL's own COPY (psql `\copy`) of the same
+ *    rows into the same table, interleaved A-B-B-A (COPY half 1, ingest half 1, ingest half 2, COPY
+ *    half 2) so neither side gets the emptier table. CSV generation is outside both timers; parsing
+ *    is inside the ingest timer.
+ * 2. Live: one epoch of 2,000 points posted ≥ 30 times to a site with ~3,900 plan triangles and
+ *    baselines; each post is timed from request to response (stored, results computed, committed).
+ *    --mode http (default) builds into .next-bench-ingest and runs `next start`; --mode in-process
+ *    calls the route handler directly (say which when quoting figures).
+ *
+ * Needs DATABASE_URL's server (a fresh database is created and dropped), or the embedded default.
+ * Data: seeded pseudo-random (mulberry32), so runs are comparable.
+ */
+import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import { createWriteStream, mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { createServer } from "node:net";
+import pg from "pg";
+import { openDatabaseUrl } from "../../lib/server/db/connect.ts";
+import { applyMigrations, projectRoot } from "../../lib/server/db/migrate.ts";
+import { closeDb, getDb } from "../../lib/server/db/client.ts";
+import { hashSecret, newSecret } from "../../lib/server/auth/secrets.ts";
+import { ingestEpochs } from "../../lib/server/ingest/service.ts";
+import { parseEpochCsvInput } from "../../lib/server/ingest/csv-input.ts";
+import { triangulatePlan } from "../../lib/network/triangulate.ts";
+
+const args = process.argv.slice(2);
+const opt = (name: string): string | undefined => {
+  const i = args.indexOf(name);
+  return i >= 0 ? args[i + 1] : undefined;
+};
+const scale = Number(opt("--scale") ?? 1);
+const asJson = args.includes("--json");
+const livePosts = Math.max(30, Number(opt("--live-posts") ?? 40));
+const modeArg = opt("--mode") ?? "http";
+const log = (m: string): void => {
+  if (!asJson) console.log(m);
+  else console.error(m);
+};
+
+const POINTS = 500;
+const EPOCHS_YEAR = 35_040;
+const CHUNK_EPOCHS = 100;
+const LIVE_POINTS = 2000;
+const T0 = Date.UTC(2023, 0, 1);
+const STEP_MS = 15 * 60_000;
+
+function mulberry32(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function withDatabase(url: string, name: string): string {
+  const u = new URL(url);
+  u.pathname = "/" + name;
+  return u.toString();
+}
+
+/** Point positions of the backfill site (a 25 × 20 grid at 10 m, jittered). */
+function basePositions(n: number, rnd: () => number): [number, number, number][] {
+  const cols = Math.ceil(Math.sqrt(n * 1.25));
+  return Array.from({ length: n }, (_, i) => [2_600_000 + (i % cols) * 10 + rnd() * 2, 1_200_000 + Math.floor(i / cols) * 10 + rnd() * 2, 400 + rnd() * 5]);
+}
+
+/** Rows of epoch k: "point,east,north,height,time" values with mm noise and a slow drift. */
+function epochRows(k: number, base: [number, number, number][], rnd: () => number, emit: (code: number, e: number, n: number, h: number, timeIso: string) => void): void {
+  const t = new Date(T0 + k * STEP_MS).toISOString();
+  const drift = k * 1e-7;
+  for (let i = 0; i < base.length; i++) {
+    const [e, n, h] = base[i];
+    emit(i + 1, e + drift + (rnd() - 0.5) * 0.002, n + (rnd() - 0.5) * 0.002, h - drift + (rnd() - 0.5) * 0.003, t);
+  }
+}
+
+const fmt = (x: number): string => x.toFixed(5);
+
+async function freePort(): Promise<number> {
+  return new Promise((ok) => {
+    const s = createServer();
+    s.listen(0, "127.0.0.1", () => {
+      const a = s.address();
+      s.close(() => ok(typeof a === "object" && a ? a.port : 0));
+    });
+  });
+}
+
+function quantile(sorted: number[], q: number): number {
+  const i = (sorted.length - 1) * q;
+  const lo = Math.floor(i);
+  const hi = Math.ceil(i);
+  return sorted[lo] + (sorted[hi] - sorted[lo]) * (i - lo);
+}
+
+async function main(): Promise<void> {
+  const target = await openDatabaseUrl();
+  const name = `epochal_bench_ingest_${Date.now().toString(36)}`;
+  const admin = new pg.Client({ connectionString: withDatabase(target.url, "postgres") });
+  await admin.connect();
+  await admin.query(`CREATE DATABASE "${name}"`);
+  await admin.end();
+  const url = withDatabase(target.url, name);
+  process.env.DATABASE_URL = url;
+  await applyMigrations(url);
+  const db = getDb();
+  const tmp = mkdtempSync(join(tmpdir(), "epochal-bench-"));
+  let server: ChildProcess | null = null;
+  const out: Record<string, number | string> = {};
+  try {
+    // ---------------------------------------------------------------- backfill vs COPY
+    const nEpochs = Math.max(2 * CHUNK_EPOCHS, Math.round(EPOCHS_YEAR * scale));
+    const half = Math.floor(nEpochs / 2);
+    log(`backfill: ${nEpochs} epochs × ${POINTS} points = ${(nEpochs * POINTS).toLocaleString("en")} observations per side (scale ${scale})`);
+    const siteIngest = await db.site.create({ data: { slug: "bench-backfill", name: "Backfill", timeZone: "UTC" } });
+    const siteCopy = await db.site.create({ data: { slug: "bench-copy", name: "COPY", timeZone: "UTC" } });
+    await db.$executeRawUnsafe(`INSERT INTO "Point" ("siteId", code) SELECT $1, 'P' || g FROM generate_series(1, ${POINTS}) g`, siteCopy.id);
+    // COPY's epochs exist beforehand (COPY does not create them); times of the same year.
+    await db.$executeRawUnsafe(
+      `INSERT INTO "Epoch" ("siteId", time, "contentHash") SELECT $1, to_timestamp(${T0 / 1000} + g * 900), 'copy' FROM generate_series(0, ${nEpochs - 1}) g`,
+      siteCopy.id,
+    );
+    const copyEpochIds = (await db.$queryRawUnsafe<{ id: number }[]>(`SELECT id FROM "Epoch" WHERE "siteId" = $1 ORDER BY time`, siteCopy.id)).map((r) => r.id);
+    const copyPointIds = (await db.$queryRawUnsafe<{ id: number }[]>(`SELECT id FROM "Point" WHERE "siteId" = $1 ORDER BY id`, siteCopy.id)).map((r) => r.id);
+
+    const base = basePositions(POINTS, mulberry32(1));
+    // COPY files for the two halves (generated untimed).
+    const writeCopyFile = async (from: number, to: number, file: string): Promise<number> => {
+      const rnd = mulberry32(1000 + from);
+      const ws = createWriteStream(file);
+      let buf = "";
+      let rows = 0;
+      for (let k = from; k < to; k++) {
+        epochRows(k, base, rnd, (code, e, n, h) => {
+          buf += `${copyEpochIds[k]},${copyPointIds[code - 1]},${fmt(e)},${fmt(n)},${fmt(h)},0.001,0.001,0.0015\n`;
+          rows++;
+        });
+        if (buf.length > 1 << 20) {
+          if (!ws.write(buf)) await new Promise<void>((ok) => ws.once("drain", () => ok()));
+          buf = "";
+        }
+      }
+      ws.end(buf);
+      await new Promise<void>((ok) => ws.on("finish", () => ok()));
+      return rows;
+    };
+    const runCopy = (file: string): number => {
+      const t = performance.now();
+      const r = spawnSync("psql", [url, "-v", "ON_ERROR_STOP=1", "-q", "-c", `\\copy "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight") FROM '${file}' WITH (FORMAT csv)`], { encoding: "utf8" });
+      if (r.status !== 0) throw new Error(`psql \\copy failed: ${r.stderr}`);
+      return (performance.now() - t) / 1000;
+    };
+    const runIngest = async (from: number, to: number): Promise<{ s: number; parseS: number; rows: number }> => {
+      const rnd = mulberry32(1000 + from);
+      let s = 0;
+      let parseS = 0;
+      let rows = 0;
+      for (let k0 = from; k0 < to; k0 += CHUNK_EPOCHS) {
+        const parts: string[] = ["point,east,north,height,time"];
+        for (let k = k0; k < Math.min(to, k0 + CHUNK_EPOCHS); k++) epochRows(k, base, rnd, (code, e, n, h, t) => parts.push(`P${code},${fmt(e)},${fmt(n)},${fmt(h)},${t}`));
+        const text = parts.join("\n") + "\n";
+        const t = performance.now();
+        const parsed = parseEpochCsvInput(text);
+        if (!parsed.ok) throw new Error(JSON.stringify(parsed.errors.slice(0, 3)));
+        const tp = performance.now();
+        await ingestEpochs(parsed.epochs, { siteId: siteIngest.id, actor: "bench", source: "bench" });
+        s += (performance.now() - t) / 1000;
+        parseS += (tp - t) / 1000;
+        rows += parts.length - 1;
+      }
+      return { s, parseS, rows };
+    };
+    const f1 = join(tmp, "copy-1.csv");
+    const f2 = join(tmp, "copy-2.csv");
+    const rowsCopy1 = await writeCopyFile(0, half, f1);
+    const rowsCopy2 = await writeCopyFile(half, nEpochs, f2);
+    const c1 = runCopy(f1);
+    log(`  COPY half 1: ${rowsCopy1.toLocaleString("en")} rows in ${c1.toFixed(1)} s`);
+    const i1 = await runIngest(0, half);
+    log(`  ingest half 1: ${i1.rows.toLocaleString("en")} rows in ${i1.s.toFixed(1)} s (CSV parsing ${i1.parseS.toFixed(1)} s)`);
+    const i2 = await runIngest(half, nEpochs);
+    log(`  ingest half 2: ${i2.rows.toLocaleString("en")} rows in ${i2.s.toFixed(1)} s (CSV parsing ${i2.parseS.toFixed(1)} s)`);
+    const c2 = runCopy(f2);
+    log(`  COPY half 2: ${rowsCopy2.toLocaleString("en")} rows in ${c2.toFixed(1)} s`);
+    rmSync(f1);
+    rmSync(f2);
+    const backfillRate = (i1.rows + i2.rows) / (i1.s + i2.s);
+    const copyRate = (rowsCopy1 + rowsCopy2) / (c1 + c2);
+    out.scale = scale;
+    out.backfillObservations = i1.rows + i2.rows;
+    out.backfillObservationsPerS = Math.round(backfillRate);
+    out.copyObservationsPerS = Math.round(copyRate);
+    out.backfillRatioToCopy = Number((backfillRate / copyRate).toFixed(3));
+    log(`backfill through ingest: ${Math.round(backfillRate).toLocaleString("en")} observations/s; COPY: ${Math.round(copyRate).toLocaleString("en")} observations/s; ratio ${(backfillRate / copyRate).toFixed(2)} (goal ≥ 0.5)`);
+
+    // ---------------------------------------------------------------- live epoch
+    const rnd = mulberry32(7);
+    const cols = 50;
+    const livePts = Array.from({ length: LIVE_POINTS }, (_, i) => ({ code: `L${String(i + 1).padStart(4, "0")}`, east: 500 + (i % cols) * 5 + rnd() * 1.5, north: 800 + Math.floor(i / cols) * 5 + rnd() * 1.5, height: 50 + rnd() }));
+    const liveSite = await db.site.create({ data: { slug: "bench-live", name: "Live", timeZone: "UTC" } });
+    const tri = triangulatePlan(livePts);
+    if (tri.status !== "ok") throw new Error(tri.message);
+    await db.element.createMany({
+      data: [
+        ...tri.triangles.map((t) => ({ siteId: liveSite.id, name: t.id, kind: "triangle", mode: "plan", pointCodes: t.codes, source: "triangulation" })),
+        ...Array.from({ length: 100 }, (_, i) => ({ siteId: liveSite.id, name: `B${i}`, kind: "baseline", mode: "slope", pointCodes: [livePts[i].code, livePts[i + cols].code] })),
+      ],
+    });
+    const elementCount = tri.triangles.length + 100;
+    const secret = newSecret("ept");
+    await db.apiToken.create({ data: { siteId: liveSite.id, scope: "ingest", tokenHash: hashSecret(secret), prefix: secret.slice(0, 10) } });
+    const liveCsv = (k: number): string =>
+      ["point,east,north,height,time", ...livePts.map((p) => `${p.code},${fmt(p.east + k * 1e-5 + (rnd() - 0.5) * 0.002)},${fmt(p.north + (rnd() - 0.5) * 0.002)},${fmt(p.height + (rnd() - 0.5) * 0.003)},${new Date(Date.UTC(2024, 0, 1) + k * STEP_MS).toISOString()}`)].join("\n") + "\n";
+
+    let mode = modeArg;
+    let post: (body: string) => Promise<number>;
+    if (mode === "http") {
+      try {
+        process.env.EPOCHAL_DIST_DIR = ".next-bench-ingest";
+        const { ensureBuild } = await import("../../lib/server/cli/serve-core.ts");
+        log("live: building the production server into .next-bench-ingest (next build) …");
+        ensureBuild(projectRoot());
+        const port = await freePort();
+        server = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-p", String(port), "-H", "127.0.0.1"], {
+          env: { ...process.env, DATABASE_URL: url, NEXT_TELEMETRY_DISABLED: "1", EPOCHAL_DIST_DIR: ".next-bench-ingest" },
+          stdio: ["ignore", "ignore", "inherit"],
+        });
+        const baseUrl = `http://127.0.0.1:${port}`;
+        const deadline = Date.now() + 60_000;
+        for (;;) {
+          const ok = await fetch(`${baseUrl}/api/health`).then((r) => r.ok, () => false);
+          if (ok) break;
+          if (server.exitCode !== null || Date.now() > deadline) throw new Error("next start did not become healthy");
+          await new Promise((r) => setTimeout(r, 200));
+        }
+        post = async (body) => {
+          const r = await fetch(`${baseUrl}/api/v1/sites/bench-live/epochs`, { method: "POST", headers: { "content-type": "text/csv", authorization: `Bearer ${secret}` }, body });
+          await r.arrayBuffer();
+          return r.status;
+        };
+      } catch (err) {
+        log(`live: production server unavailable (${(err as Error).message}); falling back to the route handler in-process`);
+        mode = "in-process";
+      }
+    }
+    if (mode !== "http") {
+      const route = await import("../../app/api/v1/sites/[slug]/epochs/route.ts");
+      post = async (body) => {
+        const r = await route.POST(new Request("http://localhost/api/v1/sites/bench-live/epochs", { method: "POST", headers: { "content-type": "text/csv", authorization: `Bearer ${secret}` }, body }), { params: Promise.resolve({ slug: "bench-live" }) });
+        await r.arrayBuffer();
+        return r.status;
+      };
+    }
+    const send = post!;
+    // Reference epoch and two warm-up posts, not timed.
+    for (let k = 0; k < 3; k++) {
+      const st = await send(liveCsv(k));
+      if (st !== 201) throw new Error(`live warm-up post answered ${st}`);
+    }
+    const times: number[] = [];
+    for (let k = 3; k < 3 + livePosts; k++) {
+      const body = liveCsv(k);
+      const t = performance.now();
+      const st = await send(body);
+      times.push(performance.now() - t);
+      if (st !== 201) throw new Error(`live post answered ${st}`);
+    }
+    const rows = await db.elementResult.count({ where: { element: { siteId: liveSite.id } } });
+    if (rows !== elementCount * (3 + livePosts)) throw new Error(`expected ${elementCount * (3 + livePosts)} result rows, found ${rows}`);
+    times.sort((a, b) => a - b);
+    out.liveMode = mode;
+    out.liveElements = elementCount;
+    out.livePosts = livePosts;
+    out.liveEpochP50Ms = Number(quantile(times, 0.5).toFixed(1));
+    out.liveEpochP95Ms = Number(quantile(times, 0.95).toFixed(1));
+    log(`live epoch (${LIVE_POINTS} points, ${elementCount} elements, ${livePosts} posts, ${mode}): p50 ${out.liveEpochP50Ms} ms, p95 ${out.liveEpochP95Ms} ms (goal p95 ≤ 150 ms)`);
+  } finally {
+    if (server) {
+      server.kill("SIGTERM");
+      await new Promise((r) => setTimeout(r, 300));
+    }
+    await closeDb();
+    const a = new pg.Client({ connectionString: withDatabase(target.url, "postgres") });
+    await a.connect();
+    await a.query(`DROP DATABASE IF EXISTS "${name}" WITH (FORCE)`);
+    await a.end();
+    rmSync(tmp, { recursive: true, force: true });
+    await target.detach();
+  }
+  if (asJson) {
+    const { backfillObservationsPerS, copyObservationsPerS, backfillRatioToCopy, liveEpochP50Ms, liveEpochP95Ms, ...rest } = out;
+    console.log(JSON.stringify({ backfillObservationsPerS, copyObservationsPerS, backfillRatioToCopy, liveEpochP50Ms, liveEpochP95Ms, ...rest }));
+  }
+}
+
+main().then(
+  () => process.exit(0),
+  (err) => {
+    console.error(err);
+    process.exit(1);
+  },
+);
