@@ -4,3 +4,4 @@ export * from "./displacement.ts";
 export * from "./lttb.ts";
 export * from "./trend.ts";
 export * from "./inverse-velocity.ts";
+export * from "./local-time.ts";

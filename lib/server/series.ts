@@ -11,12 +11,12 @@
  */
 // No "server-only" marker: the benchmark and the CLI import this module outside Next.js too.
 import { Prisma } from "./db/generated/client.ts";
-import { DateTime } from "luxon";
 import type { Db } from "./db/client.ts";
 import type { SiteRow } from "./http/route.ts";
 import { AppError } from "./errors.ts";
 import { incrementalSeries, isSignificant, rateSeries, type SeriesArrays } from "../series/increments.ts";
 import { downsampleIndices } from "../series/lttb.ts";
+import { localIsoTimes } from "../series/local-time.ts";
 import { displacementComponent, type DisplacementComponent } from "../series/displacement.ts";
 import { effectiveReferenceEpochId } from "./results/element-history.ts";
 import { getElementRow } from "./elements.ts";
@@ -72,24 +72,39 @@ function decodeFloat8(bytes: Uint8Array | null, n: number): Float64Array {
 
 type Packed = { n: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8Array | null; skipped: number };
 
-/** One row: n, skipped, and the times (ms), values, σ as packed big-endian float8 byte strings in time order. */
+/**
+ * One row: n, skipped, and the times (ms), values, σ as packed big-endian float8 byte strings. The
+ * rows come from an index scan in time order and the aggregates take them in that order (one sort,
+ * not one per aggregate); `decodePacked` checks the order and sorts if it ever were not.
+ */
 async function readPacked(db: Db, elementId: number, refId: number, q: { value: string; sigma: string | null }, from: Date | null, to: Date | null): Promise<Packed> {
   const v = Prisma.raw(`"${q.value}"`);
-  const s = q.sigma ? Prisma.raw(`"${q.sigma}"`) : Prisma.raw(`'NaN'::float8`);
+  const s = q.sigma ? Prisma.raw(`coalesce("${q.sigma}", 'NaN'::float8)`) : Prisma.raw(`'NaN'::float8`);
   const lo = from ? Prisma.sql`AND "time" >= ${from}` : Prisma.empty;
   const hi = to ? Prisma.sql`AND "time" <= ${to}` : Prisma.empty;
   const rows = await db.$queryRaw<{ n: number; skipped: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8Array | null }[]>`
     SELECT (count(*) FILTER (WHERE ok))::int AS n,
            (count(*) FILTER (WHERE NOT ok))::int AS skipped,
-           string_agg(float8send(tm), ''::bytea ORDER BY "time", "epochId") FILTER (WHERE ok) AS t,
-           string_agg(float8send(val), ''::bytea ORDER BY "time", "epochId") FILTER (WHERE ok) AS v,
-           string_agg(float8send(sig), ''::bytea ORDER BY "time", "epochId") FILTER (WHERE ok) AS s
-      FROM (SELECT "time", "epochId", (extract(epoch FROM "time") * 1000)::float8 AS tm, ${v} AS val, coalesce(${s}, 'NaN'::float8) AS sig,
-                   (status = 'ok' AND ${v} IS NOT NULL) AS ok
+           string_agg(float8send(tm), ''::bytea) FILTER (WHERE ok) AS t,
+           string_agg(float8send(val), ''::bytea) FILTER (WHERE ok) AS v,
+           string_agg(float8send(sig), ''::bytea) FILTER (WHERE ok) AS s
+      FROM (SELECT (extract(epoch FROM "time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig, (status = 'ok' AND ${v} IS NOT NULL) AS ok
               FROM "ElementResult"
-             WHERE "elementId" = ${elementId} AND "referenceEpochId" = ${refId} ${lo} ${hi}) r`;
+             WHERE "elementId" = ${elementId} AND "referenceEpochId" = ${refId} ${lo} ${hi}
+             ORDER BY "time", "epochId") r`;
   const r = rows[0];
   return { n: r.n, t: r.t, v: r.v, s: r.s, skipped: r.skipped };
+}
+
+function decodePacked(p: Packed): SeriesArrays {
+  const out: SeriesArrays = { tMs: decodeFloat8(p.t, p.n), value: decodeFloat8(p.v, p.n), sigma: decodeFloat8(p.s, p.n) };
+  for (let i = 1; i < p.n; i++) if (out.tMs[i] < out.tMs[i - 1]) return sortByTime(out);
+  return out;
+}
+
+function sortByTime(s: SeriesArrays): SeriesArrays {
+  const idx = Array.from(s.tMs.keys()).sort((a, b) => s.tMs[a] - s.tMs[b]);
+  return { tMs: Float64Array.from(idx, (i) => s.tMs[i]), value: Float64Array.from(idx, (i) => s.value[i]), sigma: Float64Array.from(idx, (i) => s.sigma[i]) };
 }
 
 /** The last usable value strictly before `from` (the predecessor an increment at `from` needs). */
@@ -123,15 +138,17 @@ function view(s: SeriesArrays, mode: SeriesMode): SeriesArrays {
 /** Downsamples and formats; the σ-less quantities report null σ and significance. */
 function format(s: SeriesArrays, maxPoints: number, timeZone: string, hasSigma: boolean): { points: SeriesPoint[]; downsampled: boolean } {
   const idx = downsampleIndices(s.tMs, s.value, maxPoints);
+  const keptT = new Float64Array(idx.length);
+  for (let k = 0; k < idx.length; k++) keptT[k] = s.tMs[idx[k]];
+  const local = localIsoTimes(keptT, timeZone);
   const points: SeriesPoint[] = new Array(idx.length);
   for (let k = 0; k < idx.length; k++) {
     const i = idx[k];
-    const ms = s.tMs[i];
     const sigma = s.sigma[i];
     const known = hasSigma && Number.isFinite(sigma);
     points[k] = {
-      t: new Date(ms).toISOString(),
-      local: DateTime.fromMillis(ms, { zone: timeZone }).toISO() ?? new Date(ms).toISOString(),
+      t: new Date(keptT[k]).toISOString(),
+      local: local[k],
       value: s.value[i],
       sigma: known ? sigma : null,
       significant: known ? isSignificant(s.value[i], sigma, SIGNIFICANCE_K) : null,
@@ -147,7 +164,7 @@ const INCREMENT_NOTE = "σ of increments and rates treats the two cumulative val
 export async function readElementArrays(db: Db, elementId: number, refId: number, quantity: ElementQuantity, from: Date | null, to: Date | null): Promise<SeriesArrays & { skipped: number }> {
   const q = QUANTITY_COLUMNS[quantity];
   const p = await readPacked(db, elementId, refId, q, from, to);
-  return { tMs: decodeFloat8(p.t, p.n), value: decodeFloat8(p.v, p.n), sigma: decodeFloat8(p.s, p.n), skipped: p.skipped };
+  return { ...decodePacked(p), skipped: p.skipped };
 }
 
 export async function elementSeries(db: Db, site: SiteRow, elementId: number, query: ElementSeriesQuery): Promise<SeriesResponse & { element: { id: number; name: string; label: string; kind: string; mode: string }; quantity: ElementQuantity }> {
