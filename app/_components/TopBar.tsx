@@ -1,7 +1,7 @@
 /**
  * The header on every signed-in page: product name, Sites, Alerts, Admin (administrators only),
  * the account's e-mail and Sign out (a POST form; works without JavaScript). Server component:
- * it reads the session itself, so pages only write <TopBar />.
+ * it reads the session itself. The root layout (app/layout.tsx) renders it on every page.
  */
 import Link from "next/link";
 import { currentUser } from "@/app/_server/auth.ts";

@@ -113,7 +113,7 @@ describe.skipIf(!chromiumPath)("sign-in form in Chromium", () => {
     await page.fill("#email", userEmail);
     await page.fill("#password", "not the password");
     await Promise.all([page.waitForURL(/error=wrong/), page.click("button[type=submit]")]);
-    expect(await page.getByRole("alert").textContent()).toMatch(/wrong/);
+    expect(await page.locator("#sign-in-error").textContent()).toMatch(/wrong/);
     expect((await ctx.cookies()).some((c) => c.name === "epochal_session")).toBe(false);
     await ctx.close();
   });

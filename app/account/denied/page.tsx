@@ -1,6 +1,5 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { TopBar } from "@/app/_components/TopBar.tsx";
 import { requireUser, safeNext } from "@/app/_server/auth.ts";
 
 export const dynamic = "force-dynamic";
@@ -16,17 +15,14 @@ export default async function DeniedPage({ searchParams }: { searchParams: Searc
   const site = typeof sp.site === "string" ? sp.site.slice(0, 100) : null;
   const from = safeNext(typeof sp.from === "string" ? sp.from : null, "/");
   return (
-    <>
-      <TopBar />
-      <main id="main">
-        <h1>Not allowed</h1>
-        <p className="notice bad" role="alert">
-          Your role {site ? <>on site “{site}” </> : null}does not allow this page (it needs: {need}). Ask an administrator if you need it.
-        </p>
-        <p>
-          <Link href={site ? `/sites/${encodeURIComponent(site)}` : "/"}>Back</Link> · <span className="muted">requested: {from}</span>
-        </p>
-      </main>
-    </>
+    <main id="main">
+      <h1>Not allowed</h1>
+      <p className="notice bad" role="alert">
+        Your role {site ? <>on site “{site}” </> : null}does not allow this page (it needs: {need}). Ask an administrator if you need it.
+      </p>
+      <p>
+        <Link href={site ? `/sites/${encodeURIComponent(site)}` : "/"}>Back</Link> · <span className="muted">requested: {from}</span>
+      </p>
+    </main>
   );
 }

@@ -1,6 +1,5 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { TopBar } from "@/app/_components/TopBar.tsx";
 import { requireSiteRole } from "@/app/_server/auth.ts";
 import { getDb } from "@/lib/server/db/client.ts";
 
@@ -17,50 +16,47 @@ export default async function SiteSettingsPage({ params }: { params: Promise<{ s
     orderBy: { user: { email: "asc" } },
   });
   return (
-    <>
-      <TopBar />
-      <main id="main">
-        <p className="muted">
-          <Link href={`/sites/${encodeURIComponent(site.slug)}`}>{site.name}</Link> › Settings
-        </p>
-        <h1>Settings · {site.name}</h1>
-        <ul>
+    <main id="main">
+      <p className="muted">
+        <Link href={`/sites/${encodeURIComponent(site.slug)}`}>{site.name}</Link> › Settings
+      </p>
+      <h1>Settings · {site.name}</h1>
+      <ul>
+        <li>
+          <Link href={`/sites/${encodeURIComponent(site.slug)}/settings/tokens`}>API tokens</Link> (loggers and scripts)
+        </li>
+        {user.isAdmin ? (
           <li>
-            <Link href={`/sites/${encodeURIComponent(site.slug)}/settings/tokens`}>API tokens</Link> (loggers and scripts)
+            <Link href={`/admin/audit?site=${encodeURIComponent(site.slug)}`}>Audit log of this site</Link>
           </li>
-          {user.isAdmin ? (
-            <li>
-              <Link href={`/admin/audit?site=${encodeURIComponent(site.slug)}`}>Audit log of this site</Link>
-            </li>
-          ) : null}
-        </ul>
-        <h2>People with a role on this site</h2>
-        <p className="muted">Global administrators hold the admin role on every site. Roles are granted on the administration page.</p>
-        {members.length === 0 ? <p className="muted">Nobody yet.</p> : null}
-        {members.length ? (
-          <table>
-            <thead>
-              <tr>
-                <th scope="col">E-mail</th>
-                <th scope="col">Name</th>
-                <th scope="col">Role</th>
-              </tr>
-            </thead>
-            <tbody>
-              {members.map((m) => (
-                <tr key={m.user.email}>
-                  <td>{m.user.email}</td>
-                  <td>{m.user.name}</td>
-                  <td>
-                    {m.role}
-                    {m.user.disabledAt ? <span className="tag disabled"> disabled</span> : null}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
         ) : null}
-      </main>
-    </>
+      </ul>
+      <h2>People with a role on this site</h2>
+      <p className="muted">Global administrators hold the admin role on every site. Roles are granted on the administration page.</p>
+      {members.length === 0 ? <p className="muted">Nobody yet.</p> : null}
+      {members.length ? (
+        <table>
+          <thead>
+            <tr>
+              <th scope="col">E-mail</th>
+              <th scope="col">Name</th>
+              <th scope="col">Role</th>
+            </tr>
+          </thead>
+          <tbody>
+            {members.map((m) => (
+              <tr key={m.user.email}>
+                <td>{m.user.email}</td>
+                <td>{m.user.name}</td>
+                <td>
+                  {m.role}
+                  {m.user.disabledAt ? <span className="tag disabled"> disabled</span> : null}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      ) : null}
+    </main>
   );
 }
