@@ -5,7 +5,8 @@
  *
  * Times are UTC: `t` is ISO 8601 with `Z`; `local` is the same instant in the site's time zone
  * (luxon), for display. Element series read ElementResult rows against the element's effective
- * reference epoch, status "ok" only (other epochs are counted in `skipped`). The read is one lean
+ * reference epoch, at current epochs (a superseded revision's rows are kept in the table but never
+ * shown), status "ok" only (other epochs are counted in `skipped`). The read is one lean
  * raw query that returns the three needed columns as packed float8 arrays (one row), decoded into
  * Float64Arrays, so a year of 15-minute epochs costs a few milliseconds rather than 35,040 row objects.
  */
@@ -78,20 +79,20 @@ type Packed = { n: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8A
  * not one per aggregate); `decodePacked` checks the order and sorts if it ever were not.
  */
 async function readPacked(db: Db, elementId: number, refId: number, q: { value: string; sigma: string | null }, from: Date | null, to: Date | null): Promise<Packed> {
-  const v = Prisma.raw(`"${q.value}"`);
-  const s = q.sigma ? Prisma.raw(`coalesce("${q.sigma}", 'NaN'::float8)`) : Prisma.raw(`'NaN'::float8`);
-  const lo = from ? Prisma.sql`AND "time" >= ${from}` : Prisma.empty;
-  const hi = to ? Prisma.sql`AND "time" <= ${to}` : Prisma.empty;
+  const v = Prisma.raw(`r."${q.value}"`);
+  const s = q.sigma ? Prisma.raw(`coalesce(r."${q.sigma}", 'NaN'::float8)`) : Prisma.raw(`'NaN'::float8`);
+  const lo = from ? Prisma.sql`AND r."time" >= ${from}` : Prisma.empty;
+  const hi = to ? Prisma.sql`AND r."time" <= ${to}` : Prisma.empty;
   const rows = await db.$queryRaw<{ n: number; skipped: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8Array | null }[]>`
     SELECT (count(*) FILTER (WHERE ok))::int AS n,
            (count(*) FILTER (WHERE NOT ok))::int AS skipped,
            string_agg(float8send(tm), ''::bytea) FILTER (WHERE ok) AS t,
            string_agg(float8send(val), ''::bytea) FILTER (WHERE ok) AS v,
            string_agg(float8send(sig), ''::bytea) FILTER (WHERE ok) AS s
-      FROM (SELECT (extract(epoch FROM "time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig, (status = 'ok' AND ${v} IS NOT NULL) AS ok
-              FROM "ElementResult"
-             WHERE "elementId" = ${elementId} AND "referenceEpochId" = ${refId} ${lo} ${hi}
-             ORDER BY "time", "epochId") r`;
+      FROM (SELECT (extract(epoch FROM r."time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig, (r.status = 'ok' AND ${v} IS NOT NULL) AS ok
+              FROM "ElementResult" r JOIN "Epoch" e ON e.id = r."epochId" AND e."isCurrent"
+             WHERE r."elementId" = ${elementId} AND r."referenceEpochId" = ${refId} ${lo} ${hi}
+             ORDER BY r."time", r."epochId") x`;
   const r = rows[0];
   return { n: r.n, t: r.t, v: r.v, s: r.s, skipped: r.skipped };
 }
@@ -109,13 +110,13 @@ function sortByTime(s: SeriesArrays): SeriesArrays {
 
 /** The last usable value strictly before `from` (the predecessor an increment at `from` needs). */
 async function readBefore(db: Db, elementId: number, refId: number, q: { value: string; sigma: string | null }, from: Date): Promise<{ tMs: number; value: number; sigma: number } | null> {
-  const v = Prisma.raw(`"${q.value}"`);
-  const s = q.sigma ? Prisma.raw(`"${q.sigma}"`) : Prisma.raw(`NULL::float8`);
+  const v = Prisma.raw(`r."${q.value}"`);
+  const s = q.sigma ? Prisma.raw(`r."${q.sigma}"`) : Prisma.raw(`NULL::float8`);
   const rows = await db.$queryRaw<{ tm: number; val: number; sig: number | null }[]>`
-    SELECT (extract(epoch FROM "time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig
-      FROM "ElementResult"
-     WHERE "elementId" = ${elementId} AND "referenceEpochId" = ${refId} AND "time" < ${from} AND status = 'ok' AND ${v} IS NOT NULL
-     ORDER BY "time" DESC, "epochId" DESC LIMIT 1`;
+    SELECT (extract(epoch FROM r."time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig
+      FROM "ElementResult" r JOIN "Epoch" e ON e.id = r."epochId" AND e."isCurrent"
+     WHERE r."elementId" = ${elementId} AND r."referenceEpochId" = ${refId} AND r."time" < ${from} AND r.status = 'ok' AND ${v} IS NOT NULL
+     ORDER BY r."time" DESC, r."epochId" DESC LIMIT 1`;
   return rows[0] ? { tMs: rows[0].tm, value: rows[0].val, sigma: rows[0].sig ?? NaN } : null;
 }
 

@@ -114,6 +114,24 @@ describe("GET /api/v1/sites/{slug}/elements/{id}/series", () => {
     expect((tooMany.json.errors as { field: string }[])[0].field).toBe("maxPoints");
   });
 
+  it("leaves out the results of a superseded epoch revision", async () => {
+    const db = getDb();
+    const s = await makeSite({ points: ["A", "B"] });
+    const [ref, second] = await addEpochs(s, [
+      { time: T0, points: { A: { east: 0, north: 0 }, B: { east: 10, north: 0 } } },
+      { time: hoursAfter(T0, 1), points: { A: { east: 0, north: 0 }, B: { east: 10.001, north: 0 } } },
+    ]);
+    const engineer = await sessionFor(s.id, "engineer");
+    const c = await call(list.POST, { method: "POST", path: "/x", params: { slug: s.slug }, cookie: engineer, body: { name: "AB", kind: "baseline", points: ["A", "B"] } });
+    const id = (c.json.element as { id: number }).id;
+    // Revision 2 of the second epoch supersedes revision 1 (as the ingest service does: flag, never delete).
+    await db.epoch.update({ where: { id: second }, data: { isCurrent: false } });
+    const rev = await db.epoch.create({ data: { siteId: s.id, time: new Date(hoursAfter(T0, 1)), revision: 2, contentHash: `rev2-${id}` } });
+    await db.elementResult.create({ data: { elementId: id, epochId: rev.id, referenceEpochId: ref, time: rev.time, status: "ok", engineering: 3e-4, sigmaEngineering: 2e-4 } });
+    const r = await call(series.GET, { method: "GET", path: "/x", params: { slug: s.slug, id: String(id) }, cookie: engineer, query: { quantity: "engineering" } });
+    expect((r.json.points as Pt[]).map((p) => p.value)).toEqual([expect.closeTo(0, 12), 3e-4]);
+  });
+
   it("reads the series against the element's new reference after re-baselining", async () => {
     const db = getDb();
     const epochs = await db.epoch.findMany({ where: { siteId: site.id }, orderBy: { time: "asc" } });
