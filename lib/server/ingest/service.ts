@@ -227,7 +227,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
         };
       }),
     });
-    results = await computeResultsForEpochs(tx, siteId, plan.map((p) => (out[p.index] as StoredEpoch).id));
+    results = await computeResultsForEpochs(tx, siteId, plan.map((p) => (out[p.index] as StoredEpoch).id), { newEpochs: true });
     await opts.failpoint?.("after-results");
   }
   const newPoints = unknown;
