@@ -10,6 +10,7 @@
  * of the runs (and more figures in `notes`); with --json the last line is `{ "seriesYearMs": …, … }`.
  * A measurement, never a pass/fail test: the goal (≤ 50 ms) is reported beside the figure.
  */
+import { loadavg } from "node:os";
 import { createTestDatabase } from "../support/database.ts";
 
 const json = process.argv.includes("--json");
@@ -82,12 +83,14 @@ async function main(): Promise<void> {
         seriesYearMs: `median of ${RUNS} runs of elementSeries(greenMax, cumulative, maxPoints 2000) over ${count.toLocaleString("en-GB")} epochs → ${points} points; goal ≤ 50 ms`,
         seriesReadOnlyMs: `${median(read).toFixed(2)} ms median for the raw read into Float64Arrays alone`,
         seriesRateMs: `${median(rate).toFixed(2)} ms median for the rate view of the same year`,
+        seriesLoad: `machine load average during the runs: ${loadavg()[0].toFixed(1)} (1 min); figures on a shared machine vary with it`,
       },
     };
     if (json) console.log(JSON.stringify(out));
     else {
       console.log(`series, one year (${count} epochs → ${points} points): ${out.seriesYearMs} ms median (goal ≤ 50 ms)`);
       for (const v of Object.values(out.notes).slice(1)) console.log(`  ${v}`);
+      console.log(`  fastest run: ${Math.min(...full).toFixed(2)} ms`);
     }
   } finally {
     await closeDb();
