@@ -120,6 +120,8 @@ export const ACCESS_TABLE: AccessRow[] = [
   { route: "/api/v1/sites/[slug]/epochs", method: "POST", access: "ingest", ok: notDenied, note: "owner: add a minimal valid epoch body" },
   { route: "/api/v1/sites/[slug]/points", method: "GET", access: "read", ok: notDenied },
   { route: "/api/v1/sites/[slug]/field", method: "GET", access: "read", ok: notDenied },
+  // Live events (issue 10): maxS=0 sends `ready` and closes, so the stream ends and the body can be read.
+  { route: "/api/v1/sites/[slug]/events", method: "GET", access: "read", query: "maxS=0" },
   // Elements, series and trends (issue 6): valid requests on the fixture points AT1–AT3 and epoch.
   { route: "/api/v1/sites/[slug]/points/[code]/series", method: "GET", access: "read", params: async (fx) => (await elementFixture(fx), { code: "AT1" }), query: "component=d2D" },
   { route: "/api/v1/sites/[slug]/elements", method: "GET", access: "read" },

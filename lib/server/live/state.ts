@@ -54,3 +54,11 @@ export function redactUrl(url: string): string {
     return "(unparseable MQTT_URL)";
   }
 }
+
+export type PublicLiveState = Pick<LiveFeedState, "connection" | "connectedSince" | "received" | "stored" | "unchanged" | "rejected" | "failed" | "reconnects">;
+
+/** What the public health route shows: the state and counters, not the broker's address or errors. */
+export function publicLiveState(): PublicLiveState {
+  const { connection, connectedSince, received, stored, unchanged, rejected, failed, reconnects } = liveFeedState();
+  return { connection, connectedSince, received, stored, unchanged, rejected, failed, reconnects };
+}

@@ -134,3 +134,35 @@ describe.skipIf(!brokerUp)("MQTT live feed (machine broker)", () => {
     expect(sub.sub.state().rejected).toBeGreaterThan(0);
   });
 });
+
+describe.skipIf(!brokerUp)("publishFiles (epochal push --mqtt)", () => {
+  it("publishFiles sends CSV and JSON files, reports stored, unchanged and refused files with file and field, and returns the exit status", async () => {
+    const { mkdtempSync, writeFileSync } = await import("node:fs");
+    const { join } = await import("node:path");
+    const { tmpdir } = await import("node:os");
+    const { publishFiles, describeProgress } = await import("../../../lib/server/live/publish.ts");
+    const site = await makeSite();
+    const s = subscriberFor(URL, site.slug);
+    try {
+      await waitFor("connected", () => s.sub.state().connection === "connected");
+      const dir = mkdtempSync(join(tmpdir(), "epochal-push-mqtt-"));
+      const csv = join(dir, "cycle.csv");
+      writeFileSync(csv, ["point,east,north,height,time", `L1,1000,2000,100,${cycleTime(0)}`, `L2,1010,2000,100.5,${cycleTime(0)}`, `L3,1005,2008.66,101,${cycleTime(0)}`].join("\n") + "\n");
+      const json = join(dir, "cycle.json");
+      writeFileSync(json, JSON.stringify(epochJson(cycleTime(1))));
+      const bad = join(dir, "bad.csv");
+      writeFileSync(bad, "point,east,north,height,time\nL1,abc,2000,100,2024-06-01T00:00:00Z\n");
+      const lines: string[] = [];
+      const status = await publishFiles({ mqttUrl: URL, site: site.slug, token: site.ingestToken, files: [csv, json, csv, bad], replyTimeoutS: 20, onProgress: (p) => lines.push(...(describeProgress(p)?.lines ?? [])) });
+      expect(status).toBe(2);
+      expect(lines[0]).toMatch(/cycle\.csv: 1 stored/);
+      expect(lines[1]).toMatch(/cycle\.json: 1 stored/);
+      expect(lines[2]).toMatch(/cycle\.csv: 0 stored, 0 revised, 1 already stored/);
+      expect(lines[3]).toMatch(/bad\.csv: refused \(status 422\)/);
+      expect(lines[4]).toMatch(/bad\.csv:2 east: /);
+      expect((await counts(site.id)).epochs).toBe(2);
+    } finally {
+      await s.sub.stop();
+    }
+  });
+});

@@ -10,6 +10,8 @@ import { getDb } from "../../../lib/server/db/client.ts";
 import { counts, makeSite } from "../ingest/helpers.ts";
 import { PrivateBroker, cycleTime, epochJson, freePort, hasMosquittoBinary, publisherFor, subscriberFor, waitFor } from "./helpers.ts";
 import { uniqueSlug } from "../../support/unique.ts";
+import { serverClientId, startLiveFeed, stopLiveFeed } from "../../../lib/server/live/start.ts";
+import { checkHealth } from "../../../lib/server/health.ts";
 
 if (!hasMosquittoBinary) console.warn("[live] no mosquitto binary: broker-restart tests skipped (apt-get install mosquitto)");
 
@@ -141,4 +143,28 @@ describe.skipIf(!hasMosquittoBinary)("MQTT live feed across restarts (private br
       await sub.stop();
     }
   }, 300_000);
+
+  it("startLiveFeed subscribes at MQTT_URL as epochal-server-<EPOCHAL_INSTANCE>, and checkHealth reports the connection", async () => {
+    const instance = uniqueSlug("inst");
+    const env = { MQTT_URL: broker.url, EPOCHAL_INSTANCE: instance };
+    expect(serverClientId(env)).toBe(`epochal-server-${instance}`);
+    const before = await checkHealth();
+    expect(before.live.connection).toBe("off");
+    await startLiveFeed(env);
+    try {
+      await waitFor("health says connected", async () => (await checkHealth()).live.connection === "connected");
+      const site = await makeSite();
+      const pub = await publisherFor(broker.url, site.slug);
+      await pub.publish({ ...epochJson(cycleTime(0)), token: site.ingestToken, clientRef: "via-start" });
+      const r = await waitFor("reply", () => pub.replies.find((x) => x.body.ref === "via-start"));
+      expect(r.body.status).toBe(201);
+      await pub.close();
+      const h = await checkHealth();
+      expect(h.live.stored).toBeGreaterThanOrEqual(1);
+      expect(JSON.stringify(h)).not.toContain("127.0.0.1");
+    } finally {
+      await stopLiveFeed();
+    }
+    expect((await checkHealth()).live.connection).toBe("stopped");
+  });
 });

@@ -25,6 +25,7 @@ Options:
   --revise             store a new revision where an epoch at that time holds other coordinates
   --chunk-observations N   split multi-epoch CSVs into posts of about N observations (default 50000)
   --quiet              no progress bar
+  --mqtt URL           publish over MQTT to the live feed instead of --url (lib/server/live/publish.ts)
 
 Exit status: 0 all stored (or already stored), 2 a file or the request was refused (errors printed
 as file:line field: message), 1 the server could not be reached or failed.`;
@@ -220,6 +221,8 @@ function parseArgs(args: string[]): PushOptions {
 }
 
 export async function run(args: string[]): Promise<number> {
+  // Live feed: `--mqtt URL` publishes the files to the broker instead (lib/server/live/publish.ts).
+  if (args.includes("--mqtt")) return (await import("../../live/publish.ts")).runMqttPush(args);
   let o: PushOptions;
   try {
     o = parseArgs(args);
