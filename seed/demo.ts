@@ -159,19 +159,23 @@ async function ensureRecipients(db: Db, siteId: number): Promise<void> {
   }
 }
 
-async function ensureElements(db: Db, site: SiteRow, sc: Scenario): Promise<Map<string, number>> {
-  const existing = new Map((await db.element.findMany({ where: { siteId: site.id }, select: { id: true, name: true } })).map((e) => [e.name, e.id]));
-  for (const el of sc.elements) {
-    if (existing.has(el.name)) continue;
-    const { element } = await createElement(db, site, ACTOR, { name: el.name, label: el.label, kind: el.kind, mode: el.mode, points: el.pointCodes });
-    existing.set(el.name, element.id);
+/** The hand-made gable and wall elements: need the points only (their history is computed as epochs arrive). */
+async function ensureManualElements(db: Db, site: SiteRow, sc: Scenario): Promise<void> {
+  const existing = new Set((await db.element.findMany({ where: { siteId: site.id }, select: { name: true } })).map((e) => e.name));
+  const todo = sc.elements.filter((el) => !existing.has(el.name));
+  // A few at a time: each is its own transaction with its audit row.
+  for (let k = 0; k < todo.length; k += 6) {
+    await Promise.all(
+      todo.slice(k, k + 6).map((el) => createElement(db, site, ACTOR, { name: el.name, label: el.label, kind: el.kind, mode: el.mode, points: el.pointCodes })),
+    );
   }
+}
+
+/** Plan triangles of the ground targets at the reference epoch (once), then every element id by name. */
+async function ensureTriangulation(db: Db, site: SiteRow): Promise<Map<string, number>> {
   const hasTriangulation = await db.element.count({ where: { siteId: site.id, source: "triangulation" } });
-  if (hasTriangulation === 0) {
-    const r = await generateElements(db, site, ACTOR, { ...DEMO_TRIANGULATION });
-    for (const e of r.created) existing.set(e.name, e.id);
-  }
-  return existing;
+  if (hasTriangulation === 0) await generateElements(db, site, ACTOR, { ...DEMO_TRIANGULATION });
+  return new Map((await db.element.findMany({ where: { siteId: site.id }, select: { id: true, name: true } })).map((e) => [e.name, e.id]));
 }
 
 async function ensureRules(db: Db, siteId: number, sc: Scenario, elementIds: Map<string, number>): Promise<void> {
@@ -224,8 +228,11 @@ export async function seedDemo(opts: SeedDemoOptions): Promise<SeedDemoResult> {
     const sc = generateScenario({ seed: opts.seed ?? DEFAULT_SEED, ...(opts.epochs ? { epochs: opts.epochs } : {}) });
     const site = await ensureSite(db, sc);
     await ensurePoints(db, site.id, sc);
-    await ensureUsers(site.id);
+    // bcrypt hashing of the demo passwords runs while the epochs go in.
+    const users = ensureUsers(site.id);
+    users.catch(() => undefined);
     await ensureRecipients(db, site.id);
+    await ensureManualElements(db, site, sc);
 
     const times = sc.epochs.map((e) => new Date(e.time));
     const stored = await db.epoch.findMany({ where: { siteId: site.id, isCurrent: true, time: { in: times } }, select: { time: true } });
@@ -236,6 +243,8 @@ export async function seedDemo(opts: SeedDemoOptions): Promise<SeedDemoResult> {
     const nowMs = Math.max(Date.now(), lastMs + 60_000);
     const publicUrl = (process.env.EPOCHAL_PUBLIC_URL ?? "http://localhost:3000").replace(/\/+$/, "");
     let created = 0;
+    // Alert evaluation of one chunk overlaps the ingest of the next; evaluations stay in epoch order.
+    let evaluation: Promise<unknown> = Promise.resolve();
 
     const ingestChunk = async (chunk: { e: ScenarioEpoch; i: number }[]) => {
       const r = await ingestEpochs(
@@ -245,29 +254,34 @@ export async function seedDemo(opts: SeedDemoOptions): Promise<SeedDemoResult> {
       );
       const ids = r.epochs.filter((x) => x.outcome !== "unchanged").map((x) => x.id);
       created += ids.length;
-      if (ids.length) await evaluateAlerts(db, site.id, ids, { hasSmtp: false, publicUrl });
+      if (ids.length) {
+        const previous = evaluation;
+        evaluation = previous.then(() => evaluateAlerts(db, site.id, ids, { hasSmtp: false, publicUrl }));
+        // Surface a failure at the next await instead of as an unhandled rejection.
+        evaluation.catch(() => undefined);
+      }
     };
 
     if (todo.length > 0) {
       progress.log(`Seeding the demo site "${sc.site.name}" (${sc.points.length} targets, ${sc.epochs.length} epochs) …`);
       progress.update(have.size, sc.epochs.length);
       let k = 0;
-      // The reference epoch first, so that elements and rules exist before the rest arrives.
+      // The reference epoch first: the triangulation is made on it, and the rules exist before the rest.
       if (!have.has(Date.parse(sc.epochs[0].time))) {
         await ingestChunk(todo.slice(0, 1));
         k = 1;
       }
-      const elementIds = await ensureElements(db, site, sc);
-      await ensureRules(db, site.id, sc, elementIds);
+      await ensureRules(db, site.id, sc, await ensureTriangulation(db, site));
       for (; k < todo.length; k += CHUNK) {
         await ingestChunk(todo.slice(k, k + CHUNK));
         progress.update(have.size + Math.min(todo.length, k + CHUNK), sc.epochs.length);
       }
+      await evaluation;
       progress.done();
     } else {
-      const elementIds = await ensureElements(db, site, sc);
-      await ensureRules(db, site.id, sc, elementIds);
+      await ensureRules(db, site.id, sc, await ensureTriangulation(db, site));
     }
+    await users;
 
     const epochsStored = await db.epoch.count({ where: { siteId: site.id, isCurrent: true } });
     const alertsOpen = await db.alert.count({ where: { siteId: site.id, clearedAt: null, isSignificant: true } });

@@ -152,7 +152,7 @@ export const WALL = { north: 7086, westEast: 4120, spacingM: 10, count: 17, cres
 export const TROUGH = {
   /** i = K·z0 (Peck 1969; K ≈ 0.5 for clays). */
   k: 0.5,
-  /** S_max per metre of excavation depth: about 0.1 % of depth at the virtual centreline. */
+  /** S_max per metre of excavation depth: 0.16 % of depth at the virtual centreline. */
   settlementPerDepth: 0.0016,
   /** Final formation depth at the west and east ends (m); the east end is a shallower concourse. */
   finalDepthWestM: 23,
