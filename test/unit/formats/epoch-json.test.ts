@@ -71,3 +71,18 @@ describe("parseEpochJson", () => {
     expect(!b.ok && b.errors[0].field).toBe("observations[0].east");
   });
 });
+
+describe("locateJsonError", () => {
+  it("locateJsonError returns null for valid JSON and the offset where the grammar breaks otherwise", async () => {
+    const { locateJsonError } = await import("../../../lib/formats/epoch-json.ts");
+    for (const ok of ['{"a": [1, -2.5e3, true, false, null, "x\\n\\u00e9"]}', "  []  ", '"s"', "0"]) {
+      expect(locateJsonError(ok)).toBe(null);
+      expect(() => JSON.parse(ok)).not.toThrow();
+    }
+    expect(locateJsonError('{"a": [1, 2,]}')).toBe(12);
+    expect(locateJsonError('{"a": 01}')).toBe(7);
+    expect(locateJsonError('{"a" 1}')).toBe(5);
+    expect(locateJsonError("[1] x")).toBe(4);
+    expect(locateJsonError('{"a": "unterminated}')).toBe(6);
+  });
+});
