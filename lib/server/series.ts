@@ -74,6 +74,14 @@ function decodeFloat8(bytes: Uint8Array | null, n: number): Float64Array {
 type Packed = { n: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8Array | null; skipped: number };
 
 /**
+ * The element's site's superseded epoch revisions (few; the index on (siteId, isCurrent, time) finds
+ * them). Excluding these is much cheaper than joining every result row to its epoch.
+ */
+function supersededEpochs(elementId: number): Prisma.Sql {
+  return Prisma.sql`SELECT e.id FROM "Epoch" e WHERE e."siteId" = (SELECT el."siteId" FROM "Element" el WHERE el.id = ${elementId}) AND NOT e."isCurrent"`;
+}
+
+/**
  * One row: n, skipped, and the times (ms), values, σ as packed big-endian float8 byte strings. The
  * rows come from an index scan in time order and the aggregates take them in that order (one sort,
  * not one per aggregate); `decodePacked` checks the order and sorts if it ever were not.
@@ -90,8 +98,9 @@ async function readPacked(db: Db, elementId: number, refId: number, q: { value: 
            string_agg(float8send(val), ''::bytea) FILTER (WHERE ok) AS v,
            string_agg(float8send(sig), ''::bytea) FILTER (WHERE ok) AS s
       FROM (SELECT (extract(epoch FROM r."time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig, (r.status = 'ok' AND ${v} IS NOT NULL) AS ok
-              FROM "ElementResult" r JOIN "Epoch" e ON e.id = r."epochId" AND e."isCurrent"
+              FROM "ElementResult" r
              WHERE r."elementId" = ${elementId} AND r."referenceEpochId" = ${refId} ${lo} ${hi}
+               AND r."epochId" NOT IN (${supersededEpochs(elementId)})
              ORDER BY r."time", r."epochId") x`;
   const r = rows[0];
   return { n: r.n, t: r.t, v: r.v, s: r.s, skipped: r.skipped };
@@ -114,8 +123,9 @@ async function readBefore(db: Db, elementId: number, refId: number, q: { value: 
   const s = q.sigma ? Prisma.raw(`r."${q.sigma}"`) : Prisma.raw(`NULL::float8`);
   const rows = await db.$queryRaw<{ tm: number; val: number; sig: number | null }[]>`
     SELECT (extract(epoch FROM r."time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig
-      FROM "ElementResult" r JOIN "Epoch" e ON e.id = r."epochId" AND e."isCurrent"
+      FROM "ElementResult" r
      WHERE r."elementId" = ${elementId} AND r."referenceEpochId" = ${refId} AND r."time" < ${from} AND r.status = 'ok' AND ${v} IS NOT NULL
+       AND r."epochId" NOT IN (${supersededEpochs(elementId)})
      ORDER BY r."time" DESC, r."epochId" DESC LIMIT 1`;
   return rows[0] ? { tMs: rows[0].tm, value: rows[0].val, sigma: rows[0].sig ?? NaN } : null;
 }
