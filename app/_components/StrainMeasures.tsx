@@ -84,11 +84,11 @@ export function StrainMeasures({ strain }: { strain: ElementJson }) {
           <p className="muted">{NOTES.small}</p>
         </div>
       </div>
-      <p className="small">
+      <div className="small">
         Deformation gradient F: <Tensor m={s.F} strain={false} /> Maximum shear {formatStrain(s.maxShear, "ue")}
         {areal !== null ? ` · areal strain ${formatStrain(areal, "ue", { signed: true })}` : ""} · rotation {s.rotationDeg.toFixed(4)}° (counter-clockwise +)
         {az !== null ? ` · major axis at ${az.toFixed(1)}° from grid north` : " · no preferred direction"}
-      </p>
+      </div>
     </>
   );
 }

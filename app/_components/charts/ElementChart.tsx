@@ -151,10 +151,10 @@ export function ElementChart(p: {
     if (showTrend && mode === "cumulative" && trend && trend.status === "ok" && trend.originMs !== undefined && trend.slopePerDay !== undefined && trend.intercept !== undefined) {
       const at = (ms: number) => (trend.intercept! + trend.slopePerDay! * ((ms - trend.originMs!) / MS_PER_DAY)) * factor;
       ds.push({ label: "Trend (least squares)", data: [{ x: trend.firstMs!, y: at(trend.firstMs!) }, { x: trend.lastMs!, y: at(trend.lastMs!) }], borderColor: "#1f2a33", borderWidth: 2, pointRadius: 0, fill: false });
-      // Projection: a quarter of the data span beyond the last point, or to the first projected crossing within a year.
+      // Projection: an eighth of the data span beyond the last point, or to the first projected crossing within a year.
       const projected = (trend.crossings ?? []).filter((c) => c.status === "projected" && c.time).map((c) => Date.parse(c.time as string));
       const span = Math.max(MS_PER_DAY, xMax - xMin);
-      let end = trend.lastMs! + span * 0.25;
+      let end = trend.lastMs! + span * 0.12;
       const first = projected.length ? Math.min(...projected) : null;
       if (first !== null && first > trend.lastMs! && first - trend.lastMs! < 365 * MS_PER_DAY) end = Math.max(end, first);
       ds.push({ label: "Projection (indication only)", data: [{ x: trend.lastMs!, y: at(trend.lastMs!) }, { x: end, y: at(end) }], borderColor: "#1f2a33", borderDash: [6, 5], borderWidth: 1.5, pointRadius: 0, fill: false });
@@ -196,7 +196,7 @@ export function ElementChart(p: {
         min: xMin,
         max: xMax,
         adapters: { date: { zone: p.timeZone } },
-        time: { tooltipFormat: "yyyy-LL-dd HH:mm ZZZZ", displayFormats: { hour: "dd LLL HH:mm", day: "dd LLL", week: "dd LLL", month: "LLL yyyy" } },
+        time: { tooltipFormat: "yyyy-LL-dd HH:mm ZZ", displayFormats: { hour: "dd LLL HH:mm", day: "dd LLL", week: "dd LLL", month: "LLL yyyy" } },
         title: { display: true, text: `Time (${p.timeZone})` },
       },
       y: { title: { display: true, text: unitLabel } },
