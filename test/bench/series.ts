@@ -11,12 +11,24 @@
  * A measurement, never a pass/fail test: the goal (≤ 50 ms) is reported beside the figure.
  */
 import { loadavg } from "node:os";
+import { readFileSync } from "node:fs";
 import { createTestDatabase } from "../support/database.ts";
 
 const json = process.argv.includes("--json");
 const quick = process.argv.includes("--quick");
 const EPOCHS = quick ? 5_000 : 35_040;
 const RUNS = quick ? 5 : 25;
+
+/** utime + stime of a local process in ms (clock ticks of 10 ms), or null when /proc cannot tell. */
+function backendCpuMs(pid: number): number | null {
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, "utf8");
+    const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+    return (Number(fields[11]) + Number(fields[12])) * 10;
+  } catch {
+    return null;
+  }
+}
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
@@ -27,6 +39,8 @@ function median(xs: number[]): number {
 async function main(): Promise<void> {
   const tdb = await createTestDatabase("bench_series");
   process.env.DATABASE_URL = tdb.url;
+  // One connection, so the PostgreSQL backend doing the work is known (for the CPU-time figure).
+  process.env.EPOCHAL_DB_POOL = "1";
   const { getDb, closeDb } = await import("../../lib/server/db/client.ts");
   const { elementSeries, readElementArrays } = await import("../../lib/server/series.ts");
   try {
@@ -59,6 +73,8 @@ async function main(): Promise<void> {
     const siteRow = { id: site.id, slug: site.slug, name: site.name, timeZone: site.timeZone };
     const query = { quantity: "greenMax" as const, maxPoints: 2000, mode: "cumulative" as const };
     for (let i = 0; i < 3; i++) await elementSeries(db, siteRow, el.id, query); // warm-up (connections, JIT)
+    const [{ pid }] = await db.$queryRaw<{ pid: number }[]>`SELECT pg_backend_pid() AS pid`;
+    const cpuStart = { node: process.cpuUsage(), pg: backendCpuMs(pid) };
     const full: number[] = [];
     const read: number[] = [];
     const rate: number[] = [];
@@ -77,12 +93,21 @@ async function main(): Promise<void> {
       await elementSeries(db, siteRow, el.id, { ...query, mode: "rate" });
       rate.push(performance.now() - a);
     }
+    // CPU time per series call, Node.js process plus the PostgreSQL backend: what one call costs when
+    // it does not wait for a core (the wall figure on a busy shared machine includes that wait).
+    const nodeCpu = process.cpuUsage(cpuStart.node);
+    const pgEnd = backendCpuMs(pid);
+    const cpuPerCallMs = pgEnd === null || cpuStart.pg === null ? null : ((nodeCpu.user + nodeCpu.system) / 1000 + (pgEnd - cpuStart.pg)) / (3 * RUNS);
     const out = {
       seriesYearMs: Number(median(full).toFixed(2)),
       notes: {
         seriesYearMs: `median of ${RUNS} runs of elementSeries(greenMax, cumulative, maxPoints 2000) over ${count.toLocaleString("en-GB")} epochs → ${points} points; goal ≤ 50 ms`,
         seriesReadOnlyMs: `${median(read).toFixed(2)} ms median for the raw read into Float64Arrays alone`,
         seriesRateMs: `${median(rate).toFixed(2)} ms median for the rate view of the same year`,
+        seriesCpuMs:
+          cpuPerCallMs === null
+            ? "CPU time not available (/proc of the PostgreSQL backend is not readable: remote server?)"
+            : `${cpuPerCallMs.toFixed(2)} ms CPU per call (Node.js ${((nodeCpu.user + nodeCpu.system) / 1000 / (3 * RUNS)).toFixed(2)} + PostgreSQL backend ${((pgEnd! - cpuStart.pg!) / (3 * RUNS)).toFixed(2)}), averaged over all ${3 * RUNS} timed calls (both modes and the raw read)`,
         seriesLoad: `machine load average during the runs: ${loadavg()[0].toFixed(1)} (1 min); figures on a shared machine vary with it`,
       },
     };
