@@ -124,6 +124,7 @@ export const ACCESS_TABLE: AccessRow[] = [
   { route: "/api/v1/sites/[slug]/events", method: "GET", access: "read", query: "maxS=0" },
   // Elements, series and trends (issue 6): valid requests on the fixture points AT1–AT3 and epoch.
   { route: "/api/v1/sites/[slug]/points/[code]/series", method: "GET", access: "read", params: async (fx) => (await elementFixture(fx), { code: "AT1" }), query: "component=d2D" },
+  { route: "/api/v1/sites/[slug]/points/[code]", method: "PATCH", access: "manage-points", params: async (fx) => (await elementFixture(fx), { code: "AT1" }), body: () => ({ note: "access test", group: "access" }) },
   { route: "/api/v1/sites/[slug]/elements", method: "GET", access: "read" },
   {
     route: "/api/v1/sites/[slug]/elements",
