@@ -59,7 +59,10 @@ function ue(v: number): string {
 export function renderStaticPlanSvg(points: readonly StaticPlanPoint[], elements: readonly StaticPlanElement[], opts: StaticPlanOptions): string {
   const W = opts.widthPx;
   const H = opts.heightPx - LEGEND_H;
-  const view = fitViewBox(points, W / H);
+  // Fit the view to the elements' points: a far reference point would shrink the field to a dot.
+  const used = new Set(elements.flatMap((e) => e.pointCodes));
+  const framed = points.filter((p) => used.has(p.code));
+  const view = fitViewBox(framed.length >= 2 ? framed : points, W / H);
   const sx = W / view.width;
   const px = (p: PlanXY): [number, number] => [(p.east - view.x) * sx, (-p.north - view.y) * sx];
   const byCode = new Map(points.map((p) => [p.code, p]));
@@ -97,12 +100,18 @@ export function renderStaticPlanSvg(points: readonly StaticPlanPoint[], elements
     if (el.highlight) labels.push(`<text x="${f1(cx + 6)}" y="${f1(cy - 6)}" font-size="10" font-weight="700" fill="#1f2a33" stroke="#fff" stroke-width="3" paint-order="stroke">${escapeXml(el.name)}</text>`);
   }
   out.push(...marks);
+  let outside = 0;
   for (const p of points) {
     const [x, y] = px(p);
+    if (x < 0 || y < 0 || x > W || y > H) {
+      outside++;
+      continue;
+    }
     out.push(p.isReference ? `<rect x="${f1(x - 3.5)}" y="${f1(y - 3.5)}" width="7" height="7" fill="#fff" stroke="#1f2a33" stroke-width="1.3"/>` : `<circle cx="${f1(x)}" cy="${f1(y)}" r="2.2" fill="#1f2a33"/>`);
     if (opts.pointLabels) out.push(`<text x="${f1(x + 3)}" y="${f1(y - 3)}" font-size="7.5" fill="#52606b">${escapeXml(p.code)}</text>`);
   }
   out.push(...labels);
+  if (outside) out.push(`<text x="10" y="16" font-size="10" fill="#52606b">${outside} point${outside === 1 ? "" : "s"} outside the view (e.g. distant reference points)</text>`);
 
   // North arrow (grid north) and scale bar, top right / bottom left of the plan.
   out.push(`<g transform="translate(${W - 24},14)"><path d="M0 0 L6 18 L0 14 L-6 18 Z" fill="#1f2a33"/><text x="0" y="30" font-size="10" text-anchor="middle" fill="#1f2a33">N</text></g>`);
@@ -112,16 +121,16 @@ export function renderStaticPlanSvg(points: readonly StaticPlanPoint[], elements
 
   // Legend: the colour scale in µε, and the marks.
   const stops = legendStops(domainMax, 7, true);
-  const cell = Math.min(46, (W - 260) / stops.length);
+  const cell = Math.min(46, (W - 300) / stops.length);
   const ly = H + 8;
   out.push(`<g font-size="9.5" fill="#1f2a33">`);
   stops.forEach((s, i) => {
     out.push(`<rect x="${f1(8 + i * cell)}" y="${ly}" width="${f1(cell)}" height="12" fill="${s.colour}" stroke="#d9d4ca" stroke-width="0.5"/>`);
     out.push(`<text x="${f1(8 + i * cell + cell / 2)}" y="${ly + 24}" text-anchor="middle">${ue(s.value)}</text>`);
   });
-  out.push(`<text x="8" y="${ly + 38}">µε (greenMax; baselines: engineering strain) — contraction blue, extension orange</text>`);
-  const kx = 16 + stops.length * cell;
-  out.push(`<text x="${f1(kx)}" y="${ly + 10}">+ / − significant extension / contraction</text>`);
+  out.push(`<text x="8" y="${ly + 38}">µε: greenMax (baselines: engineering strain)</text>`);
+  const kx = 24 + stops.length * cell;
+  out.push(`<text x="${f1(kx)}" y="${ly + 10}">+ / − significant extension (orange) / contraction (blue)</text>`);
   out.push(`<line x1="${f1(kx)}" y1="${ly + 21}" x2="${f1(kx + 18)}" y2="${ly + 21}" stroke="#52606b" stroke-dasharray="4 3"/><text x="${f1(kx + 22)}" y="${ly + 24}">not significant</text>`);
   out.push(`<text x="${f1(kx)}" y="${ly + 38}">× no value · □ reference point · ● target</text>`);
   out.push(`</g></svg>`);
