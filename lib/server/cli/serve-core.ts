@@ -50,7 +50,10 @@ export async function serve(opts: ServeOptions): Promise<number> {
   const target = await openDatabaseUrl((m) => console.log(m));
   const mig = await applyMigrations(target.url);
   console.log(mig.applied.length ? `Applied ${mig.applied.length} migration(s).` : `Database up to date (${mig.total} migrations).`);
-  const notes = (await opts.afterMigrate?.(target.url)) ?? [];
+  // First administrator from EPOCHAL_ADMIN_EMAIL / EPOCHAL_ADMIN_PASSWORD while no user exists.
+  const { ensureFirstAdmin } = await import("../users.ts");
+  const admin = await ensureFirstAdmin();
+  const notes = [...(admin ? [admin] : []), ...((await opts.afterMigrate?.(target.url)) ?? [])];
   ensureBuild(root, opts.rebuild ?? false);
   const child = spawn(process.execPath, [nextBin(root), "start", "-p", String(opts.port), "-H", opts.host], {
     cwd: root,
