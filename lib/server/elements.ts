@@ -9,6 +9,7 @@
 import type { Db } from "./db/client.ts";
 import type { Actor, SiteRow } from "./http/route.ts";
 import { AppError } from "./errors.ts";
+import { Prisma } from "./db/generated/client.ts";
 import { recordAudit } from "./audit.ts";
 import { triangulatePlan, DEFAULT_MIN_ANGLE_DEG, type PlanTriangle, type DroppedTriangle } from "../network/triangulate.ts";
 import { computeElementHistory, effectiveReferenceEpochId } from "./results/element-history.ts";
@@ -106,6 +107,13 @@ async function assertNameFree(db: Db, siteId: number, name: string, exceptId?: n
   if (other) throw new AppError("conflict", `name: an element named "${name}" already exists on this site`, { errors: [{ line: null, field: "name", message: `an element named "${name}" already exists on this site` }] });
 }
 
+/** A concurrent request took the name between the check and the insert: the same 409 as the check. */
+function nameRace(err: unknown, name: string): never {
+  if (err instanceof Prisma.PrismaClientKnownRequestError && err.code === "P2002")
+    throw new AppError("conflict", `name: an element named "${name}" already exists on this site`, { errors: [{ line: null, field: "name", message: `an element named "${name}" already exists on this site` }] });
+  throw err;
+}
+
 /** Creates one element by hand and computes its results at every current epoch. */
 export async function createElement(db: Db, site: SiteRow, actor: Actor, input: ElementManualInput): Promise<{ element: ElementView; resultsWritten: number }> {
   await assertPointsExist(db, site.id, input.points);
@@ -117,7 +125,7 @@ export async function createElement(db: Db, site: SiteRow, actor: Actor, input: 
     });
     await recordAudit(tx, { actor: actor.label, siteId: site.id, action: "element.create", entityType: "element", entityId: String(created.id), after: created });
     return created;
-  });
+  }).catch((e: unknown) => nameRace(e, input.name));
   const ref = await effectiveReferenceEpochId(db, el);
   const resultsWritten = ref === null ? 0 : await computeElementHistory(db, el, ref);
   return { element: view(el, ref), resultsWritten };
@@ -191,7 +199,7 @@ export async function generateElements(
       out.push(el);
     }
     return out;
-  });
+  }).catch((e: unknown) => nameRace(e, "(one of the generated triangles, made by a concurrent request)"));
   let resultsWritten = 0;
   for (const el of created) resultsWritten += await computeElementHistory(db, el, preview.referenceEpochId);
   return { created: created.map((el) => view(el, preview.referenceEpochId)), skipped: preview.triangles.filter((t) => t.exists).map((t) => t.name), preview, resultsWritten };
@@ -216,7 +224,7 @@ export async function updateElement(db: Db, site: SiteRow, actor: Actor, id: num
     const action = rebaseline ? "element.rebaseline" : patch.disabled === true && !before.disabledAt ? "element.disable" : patch.disabled === false && before.disabledAt ? "element.enable" : "element.update";
     await recordAudit(tx, { actor: actor.label, siteId: site.id, action, entityType: "element", entityId: String(id), before, after: el });
     return el;
-  });
+  }).catch((e: unknown) => nameRace(e, patch.name ?? before.name));
   const ref = await effectiveReferenceEpochId(db, after);
   // A re-baselined element (or one enabled again) gets every epoch since its reference against it.
   const needsHistory = (rebaseline || (patch.disabled === false && before.disabledAt !== null)) && ref !== null;
