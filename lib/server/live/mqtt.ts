@@ -126,7 +126,7 @@ export function startMqttSubscriber(o: SubscriberOptions): LiveSubscriber {
   const initialMs = o.reconnectInitialMs ?? 1000;
   const maxMs = o.reconnectMaxMs ?? 30_000;
   const st: LiveFeedState = { ...offState(), connection: "connecting", broker: redactUrl(o.url), clientId: o.clientId };
-  /** Rounds each failing message has been through (bounded: cleared on success, at most receiveMaximum keys live). */
+  /** Rounds each failing message has been through (cleared on success or give-up; at most 1000 keys). */
   const failedRounds = new Map<string, number>();
   let failureStreak = 0;
   let stopping = false;
@@ -167,6 +167,8 @@ export function startMqttSubscriber(o: SubscriberOptions): LiveSubscriber {
     const key = messageKey(msg);
     const rounds = (failedRounds.get(key) ?? 0) + 1;
     failedRounds.set(key, rounds);
+    // Bounded: a key whose message never comes back (session expired) must not stay for ever.
+    if (failedRounds.size > 1000) failedRounds.delete(failedRounds.keys().next().value as string);
     if (rounds < FAILED_ROUNDS_MAX) return { outcome, ack: false };
     failedRounds.delete(key);
     await recordAudit(db, { actor: "system", action: "mqtt.failed", entityType: "mqtt-message", after: { topic: msg.topic.slice(0, 300), bytes: msg.payload.byteLength, rounds, error: String(outcome.error).slice(0, 500) } }).catch(() => undefined);

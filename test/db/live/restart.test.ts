@@ -87,9 +87,9 @@ describe.skipIf(!hasMosquittoBinary)("MQTT live feed across restarts (private br
     }
   });
 
-  it("a burst of messages (600; EPOCHAL_BURST_N) is processed one at a time with at most receiveMaximum in flight and bounded memory (RSS printed)", async () => {
+  it("a burst of messages (400; EPOCHAL_BURST_N) is processed one at a time with at most receiveMaximum in flight and bounded memory (RSS printed)", async () => {
     const site = await makeSite();
-    const n = Number(process.env.EPOCHAL_BURST_N ?? 600);
+    const n = Number(process.env.EPOCHAL_BURST_N ?? 400);
     const receiveMaximum = 16;
     let inHandler = 0;
     let maxInHandler = 0;
