@@ -54,9 +54,12 @@ export async function runDbRestart(opts: { server: TestServer; pool: pg.Pool; cl
     if (r.status !== 200 || !r.body) throw new Error(`events stream answered ${r.status}`);
     liveOpen = true;
     const dec = new TextDecoder();
+    const reader = r.body.getReader();
     try {
-      for await (const chunk of r.body) {
-        const text = dec.decode(chunk as Uint8Array);
+      for (;;) {
+        const { done, value } = await reader.read();
+        if (done) break;
+        const text = dec.decode(value);
         const n = (text.match(/^event: epoch$/gm) ?? []).length;
         liveEvents += n;
         if (recovered) liveEventsAfterRecovery += n;
