@@ -1,0 +1,27 @@
+/** Mail outage (quick): SMTP down 5 s during an event (open, two escalations); every alert mail arrives once after SMTP returns. */
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type pg from "pg";
+import { createTestDatabase, type TestDatabase } from "../support/database.ts";
+import { openPool, printFigures } from "./support/fixtures.ts";
+import { runMailOutage } from "./support/mail-outage.ts";
+
+let db: TestDatabase;
+let pool: pg.Pool;
+beforeAll(async () => {
+  db = await createTestDatabase("rel_mail");
+  pool = openPool(db.url);
+});
+afterAll(async () => {
+  await pool?.end();
+  await db?.drop();
+});
+
+describe("mail outage", () => {
+  it("SMTP down 5 s during an event (open, two escalations): every alert mail is delivered after it returns, none twice", async () => {
+    const { figures, problems } = await runMailOutage({ databaseUrl: db.url, pool, outageS: 5, killServer: false });
+    printFigures("mail outage, 5 s", figures);
+    expect(problems).toEqual([]);
+    expect(figures.deliveredTwice).toBe(0);
+    expect(figures.delivered).toBe(figures.alertMails);
+  });
+});
