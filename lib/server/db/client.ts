@@ -26,7 +26,12 @@ export function getDb(): Db {
   const cur = holder[globalKey];
   if (cur && cur.url === url) return cur.client;
   const max = Number(process.env.EPOCHAL_DB_POOL ?? 10);
-  const client = new PrismaClient({ adapter: new PrismaPg({ connectionString: url, max }) });
+  // Interactive transactions: Prisma's 5 s default is too short for a large backfill or a busy
+  // machine; a transaction that runs out of time is rolled back whole, so a generous limit is safe.
+  const client = new PrismaClient({
+    adapter: new PrismaPg({ connectionString: url, max }),
+    transactionOptions: { timeout: Number(process.env.EPOCHAL_TX_TIMEOUT_MS ?? 120_000), maxWait: 60_000 },
+  });
   holder[globalKey] = { url, client };
   return client;
 }
