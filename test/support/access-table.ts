@@ -161,6 +161,17 @@ export const ACCESS_TABLE: AccessRow[] = [
     body: () => ({ comment: "access test: seen" }),
   },
   { route: "/api/v1/sites/[slug]/outbox", method: "GET", access: "read" },
+  // Reports, exports and the column mapping (issue 9). The PDF row asks for a reversed period (422 after
+  // the permission check) so that the table does not start Chromium for every caller.
+  { route: "/api/v1/sites/[slug]/report.pdf", method: "GET", access: "read", query: "from=2026-03-05&to=2026-03-01", ok: (s) => s === 422 },
+  { route: "/api/v1/sites/[slug]/export/[file]", method: "GET", access: "read", params: () => ({ file: "observations.csv" }) },
+  { route: "/api/v1/sites/[slug]/column-mapping", method: "GET", access: "read" },
+  {
+    route: "/api/v1/sites/[slug]/column-mapping",
+    method: "PUT",
+    access: "ingest",
+    body: () => ({ hasHeader: true, columns: { point: "Name", east: "E", north: "N", height: "H" }, coordinateUnit: "mm", sigmaUnit: "mm", timeFormat: "iso" }),
+  },
 ];
 
 // Alerting fixtures: a triangle, a rule on it and an open alert (fresh for each call).
