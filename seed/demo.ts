@@ -15,9 +15,7 @@
 import { getDb, closeDb, type Db } from "../lib/server/db/client.ts";
 import { createSite } from "../lib/server/sites.ts";
 import { ingestEpochs } from "../lib/server/ingest/service.ts";
-import { createElement, previewTriangulation } from "../lib/server/elements.ts";
-import { computeElementHistory } from "../lib/server/results/element-history.ts";
-import { recordAudit } from "../lib/server/audit.ts";
+import { createElement, generateElements } from "../lib/server/elements.ts";
 import { createRule } from "../lib/server/rules.ts";
 import { evaluateAlerts } from "../lib/server/alerts/evaluate.ts";
 import { createUser, findUserByEmail, grantRole } from "../lib/server/users.ts";
@@ -173,37 +171,11 @@ async function ensureManualElements(db: Db, site: SiteRow, sc: Scenario): Promis
   }
 }
 
-/**
- * Plan triangles of the ground targets at the reference epoch, then every element id by name. The
- * triangulation is the elements service's (previewTriangulation); each triangle is stored in its own
- * short transaction with its audit row, as generateElements stores them, because generateElements
- * writes all of them in one transaction under Prisma's default 5 s limit, which a loaded machine
- * exceeds. Triangles whose name exists are skipped, so this is idempotent.
- */
+/** Plan triangles of the ground targets at the reference epoch (once), then every element id by name. */
 async function ensureTriangulation(db: Db, site: SiteRow): Promise<Map<string, number>> {
-  const preview = await previewTriangulation(db, site, { ...DEMO_TRIANGULATION });
-  const todo = preview.triangles.filter((t) => !t.exists);
-  for (let k = 0; k < todo.length; k += 8) {
-    await Promise.all(
-      todo.slice(k, k + 8).map(async (t) => {
-        const el = await db.$transaction(async (tx) => {
-          const row = await tx.element.create({
-            data: { siteId: site.id, name: t.name, label: "", kind: "triangle", mode: "plan", pointCodes: [...t.codes], source: "triangulation", minAngleDeg: t.minAngleDeg },
-          });
-          await recordAudit(tx, {
-            actor: ACTOR_LABEL,
-            siteId: site.id,
-            action: "element.create",
-            entityType: "element",
-            entityId: String(row.id),
-            after: { ...row, triangulation: { minAngleDeg: preview.minAngleDeg, maxEdgeM: preview.maxEdgeM, pointGroup: DEMO_TRIANGULATION.pointGroup } },
-          });
-          return row;
-        });
-        await computeElementHistory(db, el, preview.referenceEpochId);
-      }),
-    );
-  }
+  // generateElements skips triangles whose name exists, so a second call creates nothing.
+  const hasTriangulation = await db.element.count({ where: { siteId: site.id, source: "triangulation" } });
+  if (hasTriangulation === 0) await generateElements(db, site, ACTOR, { ...DEMO_TRIANGULATION });
   return new Map((await db.element.findMany({ where: { siteId: site.id }, select: { id: true, name: true } })).map((e) => [e.name, e.id]));
 }
 
@@ -299,8 +271,7 @@ export async function seedDemo(opts: SeedDemoOptions): Promise<SeedDemoResult> {
         k = 1;
       }
       await ensureRules(db, site.id, sc, await ensureTriangulation(db, site));
-      // bcrypt hashing of the demo passwords runs while the epochs go in (not earlier: it slows the
-      // event loop, and the triangulation's one transaction has a short time limit).
+      // bcrypt hashing of the demo passwords runs while the epochs go in.
       users = ensureUsers(site.id);
       users.catch(() => undefined);
       for (; k < todo.length; k += CHUNK) {
