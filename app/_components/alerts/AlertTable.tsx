@@ -47,7 +47,12 @@ export function AlertTable({ alerts, canAcknowledge, showSite, back }: { alerts:
                 {formatStrain(a.value, "ue", { signed: true })}
                 {isRate ? "/day" : ""}
                 {a.sigma !== null ? ` ± ${formatStrain(a.sigma, "ue", { withUnit: false })}` : ""}
-                <div className={a.isSignificant ? "sig yes small" : "sig no small"}>{a.isSignificant ? "significant" : "not significant"}</div>
+                {(() => {
+                  // Now: the value and σ the alert holds (its latest epoch); ever: whether it has been significant while open.
+                  const now = a.sigma !== null ? Math.abs(a.value) > 1.96 * a.sigma : null;
+                  const text = now === null ? (a.isSignificant ? "significant" : "not significant") : now ? "significant" : a.isSignificant ? "not significant now (was)" : "not significant";
+                  return <div className={now ?? a.isSignificant ? "sig yes small" : "sig no small"}>{text}</div>;
+                })()}
               </td>
               <td>{formatSiteTime(a.openedAtMs, a.timeZone)}</td>
               <td>{a.clearedAtMs ? `cleared ${formatSiteTime(a.clearedAtMs, a.timeZone)}` : a.isSignificant ? "open" : "open (watch)"}</td>

@@ -156,7 +156,8 @@ export function ElementChart(p: {
       const span = Math.max(MS_PER_DAY, xMax - xMin);
       let end = trend.lastMs! + span * 0.12;
       const first = projected.length ? Math.min(...projected) : null;
-      if (first !== null && first > trend.lastMs! && first - trend.lastMs! < 365 * MS_PER_DAY) end = Math.max(end, first);
+      // Reach out to a projected crossing only when it is near: the data keep most of the axis.
+      if (first !== null && first > trend.lastMs!) end = Math.max(end, Math.min(first, trend.lastMs! + span * 0.35));
       ds.push({ label: "Projection (indication only)", data: [{ x: trend.lastMs!, y: at(trend.lastMs!) }, { x: end, y: at(end) }], borderColor: "#1f2a33", borderDash: [6, 5], borderWidth: 1.5, pointRadius: 0, fill: false });
       xMax = Math.max(xMax, end);
     }
@@ -202,7 +203,11 @@ export function ElementChart(p: {
       y: { title: { display: true, text: unitLabel } },
     },
     plugins: {
-      legend: { position: "bottom", labels: { boxWidth: 18, filter: (item) => !item.text.startsWith("+") } },
+      legend: {
+        position: "bottom",
+        // One entry per label: the ± lines of a magnitude level share theirs; the upper σ edge has none of its own.
+        labels: { boxWidth: 18, filter: (item, data) => !item.text.startsWith("+") && data.datasets.findIndex((d) => d.label === item.text) === item.datasetIndex },
+      },
       tooltip: {
         callbacks: {
           label: (ctx) => {

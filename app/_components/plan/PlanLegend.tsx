@@ -11,6 +11,7 @@ export function PlanLegend(p: {
   exaggeration: number;
   upp: number;
   showGlyphs: boolean;
+  glyphsThinned: boolean;
   showVectors: boolean;
   hasBaselines: boolean;
   mode: "cumulative" | "increment";
@@ -69,6 +70,7 @@ export function PlanLegend(p: {
           <div className="small">
             this length = {formatStrain(p.glyphRefStrain, p.unit)}
             {p.glyphRefPx > 220 ? " (bar shortened at this zoom)" : ""}
+            {p.glyphsThinned ? ". Small elements get theirs when you zoom in." : ""}
           </div>
         </div>
       ) : null}
@@ -83,7 +85,7 @@ export function PlanLegend(p: {
           <div className="small">{formatLength(barM)} of movement</div>
         </div>
       ) : null}
-      <p className="muted small">Drag to pan, wheel or + / − to zoom, arrows to move, 0 to reset. Hover for values with σ; click to open.</p>
+      <p className="muted small no-print">Drag to pan, wheel or + / − to zoom, arrows to move, 0 to reset. Hover for values with σ; click to open.</p>
     </aside>
   );
 }

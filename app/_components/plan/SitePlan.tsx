@@ -17,7 +17,7 @@ import {
   formatStrain,
   glyphScale,
   inkOn,
-  niceCeil,
+  niceCeilFine,
   niceFloor,
   panView,
   polygonCentroid,
@@ -70,7 +70,9 @@ type Shape = {
   sizeM: number;
 };
 
-const EXAGGERATIONS = [100, 200, 500, 1000, 2000, 5000, 10000] as const;
+const EXAGGERATIONS = [10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10000] as const;
+/** Glyphs are drawn only on elements at least this many screen pixels across (zoom in for the rest). */
+const MIN_GLYPH_ELEMENT_PX = 22;
 const PLAY_STEP_MS = 700;
 
 /** Robust maximum: the 98th percentile of magnitudes, so one wild element does not wash the plan out. */
@@ -78,6 +80,20 @@ function robustMax(values: number[]): number {
   const a = values.filter((v) => Number.isFinite(v)).map(Math.abs).sort((x, y) => x - y);
   if (a.length === 0) return 0;
   return a[Math.min(a.length - 1, Math.floor(a.length * 0.98))] || a[a.length - 1];
+}
+
+/**
+ * Default exaggeration: the largest offered value at which the 95th percentile of the plan
+ * displacements draws at most 1.2 typical element sizes.
+ */
+function defaultExaggeration(field: StrainField | null, typicalSizeM: number): number {
+  if (!field || field.points.length === 0 || !(typicalSizeM > 0)) return 1000;
+  const d = field.points.map((p) => Math.hypot(p.dE, p.dN)).sort((a, b) => a - b);
+  const p95 = d[Math.min(d.length - 1, Math.floor(d.length * 0.95))];
+  if (!(p95 > 0)) return 1000;
+  let best: number = EXAGGERATIONS[0];
+  for (const x of EXAGGERATIONS) if (p95 * x <= 1.2 * typicalSizeM) best = x;
+  return best;
 }
 
 function median(values: number[]): number {
@@ -96,7 +112,7 @@ export function SitePlan(props: SitePlanProps) {
   const [showGlyphs, setShowGlyphs] = useState(true);
   const [showVectors, setShowVectors] = useState(true);
   const [showLabels, setShowLabels] = useState(false);
-  const [exaggeration, setExaggeration] = useState<number>(1000);
+  const [exaggeration, setExaggeration] = useState<number | null>(null);
   const [lockScale, setLockScale] = useState(false);
   const [lockedMax, setLockedMax] = useState<number | null>(null);
 
@@ -113,7 +129,13 @@ export function SitePlan(props: SitePlanProps) {
   const [hover, setHover] = useState<{ id: number; x: number; y: number } | null>(null);
 
   const pointByCode = useMemo(() => new Map(points.map((p) => [p.code, p])), [points]);
-  const home = useMemo(() => fitViewBox(points, size.w / size.h), [points, size.w, size.h]);
+  // Fit the view to the points that make up elements: far stable references would shrink the zone that moves.
+  const fitPoints = useMemo(() => {
+    const used = new Set(elements.flatMap((e) => e.pointCodes));
+    const inElements = points.filter((p) => used.has(p.code));
+    return inElements.length >= 2 ? inElements : points;
+  }, [points, elements]);
+  const home = useMemo(() => fitViewBox(fitPoints, size.w / size.h), [fitPoints, size.w, size.h]);
   const [view, setView] = useState<ViewBox>(home);
   const homeRef = useRef(home);
   useEffect(() => {
@@ -220,7 +242,7 @@ export function SitePlan(props: SitePlanProps) {
       if (v !== null) vals.push(v);
     }
     const m = robustMax(vals);
-    return m > 0 ? niceCeil(m) : info.kind === "angle" ? 1 : 100e-6;
+    return m > 0 ? niceCeilFine(m) : info.kind === "angle" ? 1 : 100e-6;
   }, [shapes, valueById, quantity, k, info.kind]);
   const domainMax = lockScale && lockedMax ? lockedMax : autoMax;
   useEffect(() => {
@@ -240,6 +262,7 @@ export function SitePlan(props: SitePlanProps) {
   // Glyph scale: the legend's reference strain (a nice number near the largest principal value) draws 0.8 × a typical element size.
   const glyphRefStrain = principalMax > 0 ? niceFloor(principalMax) || principalMax : 0;
   const scale = glyphScale(glyphRefStrain, typicalSizeM * 0.8);
+  const exag = exaggeration ?? defaultExaggeration(props.initialField, typicalSizeM);
 
   const upp = unitsPerPixel(view, size.w, size.h);
   // Quantise so that layers redraw only when the zoom changes noticeably.
@@ -347,7 +370,7 @@ export function SitePlan(props: SitePlanProps) {
         </label>
         <label>
           Vector exaggeration
-          <select value={exaggeration} onChange={(e) => setExaggeration(Number(e.target.value))} name="exaggeration">
+          <select value={exag} onChange={(e) => setExaggeration(Number(e.target.value))} name="exaggeration">
             {EXAGGERATIONS.map((x) => (
               <option key={x} value={x}>
                 ×{x}
@@ -382,6 +405,10 @@ export function SitePlan(props: SitePlanProps) {
         </div>
       </div>
 
+      <p className="print-only">
+        {info.label}, {field?.mode === "increment" ? `increment from ${formatSiteTime(field.from.timeMs, timeZone)}` : "cumulative since the reference epoch"}, at{" "}
+        {field ? formatSiteTime(field.epoch.timeMs, timeZone) : "–"} ({timeZone}).
+      </p>
       {epochIds.length > 0 ? (
         <EpochScrubber
           timeZone={timeZone}
@@ -433,7 +460,7 @@ export function SitePlan(props: SitePlanProps) {
             <ElementsLayer shapes={shapes} valueById={valueById} quantity={quantity} k={k} domainMax={domainMax} upp={uppQ} showMarkers={!showGlyphs} />
             {showGlyphs ? <GlyphLayer shapes={shapes} valueById={valueById} scale={scale} upp={uppQ} /> : null}
             <PointsLayer points={points} upp={uppQ} showLabels={showLabels} />
-            {showVectors && field ? <VectorLayer field={field} pointByCode={pointByCode} exaggeration={exaggeration} upp={uppQ} /> : null}
+            {showVectors && field ? <VectorLayer field={field} pointByCode={pointByCode} exaggeration={exag} upp={uppQ} /> : null}
           </svg>
           {hovered && hoveredValues ? (
             <Tooltip x={hover!.x} y={hover!.y} w={size.w} shape={hovered} fe={hoveredValues} quantity={quantity} unit={unit} k={k} />
@@ -447,9 +474,10 @@ export function SitePlan(props: SitePlanProps) {
           domainMax={domainMax}
           glyphRefStrain={glyphRefStrain}
           glyphRefPx={scale > 0 ? (glyphRefStrain * scale) / upp : 0}
-          exaggeration={exaggeration}
+          exaggeration={exag}
           upp={upp}
           showGlyphs={showGlyphs}
+          glyphsThinned={showGlyphs && shapes.some((s) => s.kind === "polygon" && s.sizeM / uppQ < MIN_GLYPH_ELEMENT_PX)}
           showVectors={showVectors}
           hasBaselines={shapes.some((s) => s.el.kind === "baseline")}
           mode={field?.mode ?? "cumulative"}
@@ -543,7 +571,7 @@ const GlyphLayer = memo(function GlyphLayer(p: { shapes: Shape[]; valueById: Map
   return (
     <g className="glyphs" pointerEvents="none">
       {p.shapes.map((s) => {
-        if (s.kind !== "polygon") return null;
+        if (s.kind !== "polygon" || s.sizeM / p.upp < MIN_GLYPH_ELEMENT_PX) return null;
         const fe = p.valueById.get(s.el.id);
         if (!fe || fe.greenMax === null || fe.greenMin === null) return null;
         const bars = principalGlyph({ cx: s.c.x, cy: s.c.y, azimuthMaxDeg: fe.azimuthMaxDeg, major: fe.greenMax, minor: fe.greenMin, scale: p.scale, headSize: 5 * p.upp });

@@ -93,7 +93,7 @@ export function UploadEpochs({ slug, timeZone }: { slug: string; timeZone: strin
       const j = (await r.json().catch(() => null)) as { epochs?: ServerEpoch[]; error?: { message: string }; errors?: { line: number | null; field: string | null; message: string }[] } | null;
       if (!r.ok) {
         const errors = (j?.errors ?? []).map((e) => ({ line: e.line !== null && e.line >= 1 && e.line <= lines.length ? lines[e.line - 1] : (e.line ?? 0), field: e.field, message: e.message }));
-        const before = stored.length ? ` ${stored.length} epoch(s) before this chunk were stored.` : " Nothing was stored.";
+        const before = stored.length ? ` ${stored.length} epoch(s) before this chunk were stored.` : "";
         setOutcome({ stored, errors, message: `${j?.error?.message ?? `HTTP ${r.status}`}${before}`, conflict: r.status === 409 });
         setBusy(false);
         return;
@@ -108,7 +108,7 @@ export function UploadEpochs({ slug, timeZone }: { slug: string; timeZone: strin
 
   const errors: CsvError[] = parsed && !parsed.ok ? parsed.errors : [];
   const badLines = new Set(errors.map((e) => e.line));
-  const previewLines = text === null ? [] : text.split(/\r?\n/).slice(0, PREVIEW_ROWS + 1);
+  const previewLines = text === null ? [] : text.replace(/\r?\n$/, "").split(/\r?\n/).slice(0, PREVIEW_ROWS + 1);
 
   return (
     <div className="upload">
@@ -135,7 +135,7 @@ export function UploadEpochs({ slug, timeZone }: { slug: string; timeZone: strin
         />
         <label htmlFor="default-time">Time for rows without one (ISO 8601 with offset, e.g. 2025-03-01T08:00:00+01:00)</label>
         <input id="default-time" value={defaultTime} onChange={(e) => setDefaultTime(e.target.value)} size={32} placeholder="only needed when the file has no time column" />
-        <label className="check">
+        <label className="check block">
           <input type="checkbox" checked={revise} onChange={(e) => setRevise(e.target.checked)} /> Replace epochs already stored at the same time with a new revision (the old one is kept)
         </label>
         <div style={{ marginTop: 10 }}>

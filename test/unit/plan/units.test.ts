@@ -53,3 +53,14 @@ describe("formatSiteTime", () => {
     expect(formatSiteTime(ms, "America/New_York")).toBe("2025-01-15 07:00 -05:00");
   });
 });
+
+describe("niceCeilFine", () => {
+  it("niceCeilFine rounds up to 1, 1.5, 2, 2.5, 3, 4, 5, 6 or 8 times a power of ten", async () => {
+    const { niceCeilFine } = await import("../../../lib/plan/nice.ts");
+    expect(niceCeilFine(1277e-6)).toBeCloseTo(1500e-6, 15);
+    expect(niceCeilFine(2.1)).toBe(2.5);
+    expect(niceCeilFine(8.5)).toBe(10);
+    expect(niceCeilFine(7)).toBe(8);
+    expect(niceCeilFine(0)).toBe(0);
+  });
+});
