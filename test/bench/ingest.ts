@@ -28,6 +28,7 @@ import { applyMigrations, projectRoot } from "../../lib/server/db/migrate.ts";
 import { closeDb, getDb } from "../../lib/server/db/client.ts";
 import { hashSecret, newSecret } from "../../lib/server/auth/secrets.ts";
 import { ingestEpochs } from "../../lib/server/ingest/service.ts";
+import { closeIngestPools } from "../../lib/server/ingest/pg-tx.ts";
 import { parseEpochCsvInput } from "../../lib/server/ingest/csv-input.ts";
 import { triangulatePlan } from "../../lib/network/triangulate.ts";
 
@@ -42,6 +43,10 @@ const scale = Number(opt("--scale") ?? 0.1);
 const asJson = args.includes("--json");
 const livePosts = Math.max(30, Number(opt("--live-posts") ?? 40));
 const modeArg = opt("--mode") ?? "http";
+/** `--only backfill` or `--only live`: run one half (profiling, scaling runs). */
+const only = opt("--only") ?? "all";
+const runBackfill = only === "all" || only === "backfill";
+const runLive = only === "all" || only === "live";
 const log = (m: string): void => {
   if (!asJson) console.log(m);
   else console.error(m);
@@ -50,7 +55,7 @@ const log = (m: string): void => {
 const POINTS = 500;
 const EPOCHS_YEAR = 35_040;
 const CHUNK_EPOCHS = 100;
-const LIVE_POINTS = 2000;
+const LIVE_POINTS = Number(opt("--live-points") ?? 2000);
 const T0 = Date.UTC(2023, 0, 1);
 const STEP_MS = 15 * 60_000;
 
@@ -122,6 +127,7 @@ async function main(): Promise<void> {
   const out: Record<string, number | string> = {};
   try {
     // ---------------------------------------------------------------- backfill vs COPY
+    if (runBackfill) {
     const nEpochs = Math.max(2 * CHUNK_EPOCHS, Math.round(EPOCHS_YEAR * scale));
     const half = Math.floor(nEpochs / 2);
     log(`backfill: ${nEpochs} epochs × ${POINTS} points = ${(nEpochs * POINTS).toLocaleString("en")} observations per side (scale ${scale})`);
@@ -206,7 +212,9 @@ async function main(): Promise<void> {
     out.backfillRatioToCopy = Number((backfillRate / copyRate).toFixed(3));
     log(`backfill through ingest: ${Math.round(backfillRate).toLocaleString("en")} observations/s; COPY: ${Math.round(copyRate).toLocaleString("en")} observations/s; ratio ${(backfillRate / copyRate).toFixed(2)} (goal ≥ 0.5)`);
 
+    }
     // ---------------------------------------------------------------- live epoch
+    if (runLive) {
     const rnd = mulberry32(7);
     const cols = 50;
     const livePts = Array.from({ length: LIVE_POINTS }, (_, i) => ({ code: `L${String(i + 1).padStart(4, "0")}`, east: 500 + (i % cols) * 5 + rnd() * 1.5, north: 800 + Math.floor(i / cols) * 5 + rnd() * 1.5, height: 50 + rnd() }));
@@ -287,12 +295,14 @@ async function main(): Promise<void> {
     out.liveEpochP50Ms = Number(quantile(times, 0.5).toFixed(1));
     out.liveEpochP95Ms = Number(quantile(times, 0.95).toFixed(1));
     log(`live epoch (${LIVE_POINTS} points, ${elementCount} elements, ${livePosts} posts, ${mode}): p50 ${out.liveEpochP50Ms} ms, p95 ${out.liveEpochP95Ms} ms (goal p95 ≤ 150 ms)`);
+    }
   } finally {
     if (server) {
       server.kill("SIGTERM");
       await new Promise((r) => setTimeout(r, 300));
     }
     await closeDb();
+    await closeIngestPools();
     const a = new pg.Client({ connectionString: withDatabase(target.url, "postgres") });
     await a.connect();
     await a.query(`DROP DATABASE IF EXISTS "${name}" WITH (FORCE)`);

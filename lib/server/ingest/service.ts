@@ -16,14 +16,14 @@
  * revised epoch.
  */
 import { createHash } from "node:crypto";
-import { getDb, type Db } from "../db/client.ts";
-import type { Prisma } from "../db/generated/client.ts";
+import type { Db } from "../db/client.ts";
 import { AppError, type FieldError } from "../errors.ts";
 import { auditSafe } from "../audit.ts";
 import { checkEpochBounds } from "../schemas/ingest.ts";
 import { computeResultsForEpochs } from "../results/compute.ts";
 import { afterEpochsCommitted } from "../pipeline.ts";
 import { floatArray, intArray, textArray } from "./sql-arrays.ts";
+import { withPgTransaction, type Sql } from "./pg-tx.ts";
 import type { EpochInput } from "../../formats/epoch-json.ts";
 
 /** First key of the two-key advisory lock: "EPCH" in ASCII, so our locks are recognisable in pg_locks. */
@@ -90,15 +90,19 @@ export function epochContentHash(obs: readonly ResolvedObservation[]): string {
   return h.digest("hex");
 }
 
-type Tx = Prisma.TransactionClient;
+type Tx = Sql;
 
 function transactionTimeoutMs(): number {
   const v = Number(process.env.EPOCHAL_INGEST_TIMEOUT_MS);
   return Number.isFinite(v) && v > 0 ? v : 10 * 60_000;
 }
 
-/** Stores the epochs; throws AppError `invalid` (422, nothing written) or `conflict` (409, nothing written). */
-export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOptions, db: Db = getDb()): Promise<IngestResult> {
+/**
+ * Stores the epochs; throws AppError `invalid` (422, nothing written) or `conflict` (409, nothing written).
+ * Writes through the plain `pg` pool of pg-tx.ts on DATABASE_URL (not through Prisma: see there why);
+ * `_db` is kept for callers that pass the shared client and is not used.
+ */
+export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOptions, _db?: Db): Promise<IngestResult> {
   if (input.length === 0) throw new AppError("invalid", "No epochs in the request.", { errors: [{ line: null, field: null, message: "no epochs" }] });
   const boundErrors = checkEpochBounds(input, opts.nowMs ?? Date.now());
   if (boundErrors.length > 0) throw new AppError("invalid", "The input has values outside the plausible bounds; nothing was stored.", { errors: boundErrors });
@@ -108,7 +112,7 @@ export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOpt
     seenTimes.add(ep.time);
   }
 
-  const result = await db.$transaction(async (tx) => run(tx, input, opts), { timeout: transactionTimeoutMs(), maxWait: 60_000 });
+  const result = await withPgTransaction((tx) => run(tx, input, opts), { timeoutMs: transactionTimeoutMs() });
   const committed = result.epochs.filter((e) => e.outcome !== "unchanged").map((e) => e.id);
   await afterEpochsCommitted(opts.siteId, committed);
   return result;
@@ -116,8 +120,8 @@ export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOpt
 
 async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): Promise<IngestResult> {
   const { siteId } = opts;
-  await tx.$executeRawUnsafe(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, INGEST_LOCK_NAMESPACE, siteId);
-  const site = await tx.site.findUnique({ where: { id: siteId }, select: { sigmaHM: true, sigmaVM: true, refuseUnknownPoints: true } });
+  await tx.query(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, [INGEST_LOCK_NAMESPACE, siteId]);
+  const [site] = await tx.query<{ sigmaHM: number; sigmaVM: number; refuseUnknownPoints: boolean }>(`SELECT "sigmaHM", "sigmaVM", "refuseUnknownPoints" FROM "Site" WHERE id = $1`, [siteId]);
   if (!site) throw new AppError("not_found", `No site with id ${siteId}.`);
 
   // 1. Points.
@@ -125,7 +129,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   for (const ep of input) ep.observations.forEach((o, i) => firstUse.has(o.point) || firstUse.set(o.point, { epoch: ep, index: i }));
   const codes = [...firstUse.keys()];
   const pointId = new Map<string, number>();
-  const known = await tx.$queryRawUnsafe<{ id: number; code: string }[]>(`SELECT id, code FROM "Point" WHERE "siteId" = $1 AND code = ANY($2::text[])`, siteId, textArray(codes));
+  const known = await tx.query<{ id: number; code: string }>(`SELECT id, code FROM "Point" WHERE "siteId" = $1 AND code = ANY($2::text[])`, [siteId, textArray(codes)]);
   for (const p of known) pointId.set(p.code, p.id);
   const unknown = codes.filter((c) => !pointId.has(c));
   if (unknown.length > 0 && site.refuseUnknownPoints) {
@@ -136,8 +140,8 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     throw new AppError("invalid", "The input names points this site does not know; nothing was stored.", { errors });
   }
   if (unknown.length > 0) {
-    await tx.$executeRawUnsafe(`INSERT INTO "Point" ("siteId", code) SELECT $1, c FROM unnest($2::text[]) AS c ON CONFLICT ("siteId", code) DO NOTHING`, siteId, textArray(unknown));
-    const added = await tx.$queryRawUnsafe<{ id: number; code: string }[]>(`SELECT id, code FROM "Point" WHERE "siteId" = $1 AND code = ANY($2::text[])`, siteId, textArray(unknown));
+    await tx.query(`INSERT INTO "Point" ("siteId", code) SELECT $1, c FROM unnest($2::text[]) AS c ON CONFLICT ("siteId", code) DO NOTHING`, [siteId, textArray(unknown)]);
+    const added = await tx.query<{ id: number; code: string }>(`SELECT id, code FROM "Point" WHERE "siteId" = $1 AND code = ANY($2::text[])`, [siteId, textArray(unknown)]);
     for (const p of added) pointId.set(p.code, p.id);
   }
   await opts.failpoint?.("after-points");
@@ -157,14 +161,13 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     ),
   );
   const hashes = resolved.map((r) => epochContentHash(r));
-  const existing = await tx.$queryRawUnsafe<{ id: number; time: Date; contentHash: string; revision: number; n: number; maxRevision: number }[]>(
+  const existing = await tx.query<{ id: number; time: Date; contentHash: string; revision: number; n: number; maxRevision: number }>(
     `SELECT e.id, e.time, e."contentHash", e.revision,
             (SELECT count(*) FROM "Observation" o WHERE o."epochId" = e.id)::int AS n,
             (SELECT max(e2.revision) FROM "Epoch" e2 WHERE e2."siteId" = e."siteId" AND e2.time = e.time)::int AS "maxRevision"
        FROM "Epoch" e
       WHERE e."siteId" = $1 AND e."isCurrent" AND e.time = ANY($2::timestamptz[])`,
-    siteId,
-    textArray(input.map((e) => e.time)),
+    [siteId, textArray(input.map((e) => e.time))],
   );
   const byTime = new Map(existing.map((e) => [e.time.getTime(), e]));
   const plan: { index: number; revision: number; previous: (typeof existing)[number] | null }[] = [];
@@ -186,19 +189,14 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
 
   // 3. Write.
   const revisedIds = plan.filter((p) => p.previous).map((p) => (p.previous as (typeof existing)[number]).id);
-  if (revisedIds.length > 0) await tx.$executeRawUnsafe(`UPDATE "Epoch" SET "isCurrent" = false WHERE id = ANY($1::int[])`, intArray(revisedIds));
+  if (revisedIds.length > 0) await tx.query(`UPDATE "Epoch" SET "isCurrent" = false WHERE id = ANY($1::int[])`, [intArray(revisedIds)]);
   let results = 0;
   if (plan.length > 0) {
-    const inserted = await tx.$queryRawUnsafe<{ id: number; time: Date }[]>(
+    const inserted = await tx.query<{ id: number; time: Date }>(
       `INSERT INTO "Epoch" ("siteId", "time", "revision", "isCurrent", "source", "contentHash", "createdBy")
        SELECT $1, t, r, true, $2, h, $3 FROM unnest($4::timestamptz[], $5::int[], $6::text[]) AS u(t, r, h)
        RETURNING id, "time"`,
-      siteId,
-      opts.source ?? "api",
-      opts.actor,
-      textArray(plan.map((p) => input[p.index].time)),
-      intArray(plan.map((p) => p.revision)),
-      textArray(plan.map((p) => hashes[p.index])),
+      [siteId, opts.source ?? "api", opts.actor, textArray(plan.map((p) => input[p.index].time)), intArray(plan.map((p) => p.revision)), textArray(plan.map((p) => hashes[p.index]))],
     );
     const idByTime = new Map(inserted.map((r) => [r.time.getTime(), r.id]));
     for (const p of plan) {
@@ -211,23 +209,27 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     await opts.failpoint?.("after-observations");
 
     // 4. Audit and results.
-    await tx.auditEntry.createMany({
-      data: plan.map((p) => {
-        const e = out[p.index] as StoredEpoch;
-        const before = p.previous ? auditSafe({ id: p.previous.id, revision: p.previous.revision, observations: p.previous.n, contentHash: p.previous.contentHash }) : null;
-        const after = auditSafe({ time: e.time, observations: e.observations, contentHash: e.contentHash, revision: e.revision, source: opts.source ?? "api" });
-        return {
-          actor: opts.actor,
-          siteId,
-          action: p.previous ? "epoch.revise" : "epoch.upload",
-          entityType: "epoch",
-          entityId: String(e.id),
-          ...(before === null ? {} : { before }),
-          ...(after === null ? {} : { after }),
-        };
-      }),
+    const audit = plan.map((p) => {
+      const e = out[p.index] as StoredEpoch;
+      const before = p.previous ? auditSafe({ id: p.previous.id, revision: p.previous.revision, observations: p.previous.n, contentHash: p.previous.contentHash }) : null;
+      const after = auditSafe({ time: e.time, observations: e.observations, contentHash: e.contentHash, revision: e.revision, source: opts.source ?? "api" });
+      return { action: p.previous ? "epoch.revise" : "epoch.upload", entityId: String(e.id), before: before === null ? null : JSON.stringify(before), after: after === null ? null : JSON.stringify(after) };
     });
-    results = await computeResultsForEpochs(tx, siteId, plan.map((p) => (out[p.index] as StoredEpoch).id), { newEpochs: true });
+    await tx.query(
+      `INSERT INTO "AuditEntry" (actor, "siteId", action, "entityType", "entityId", before, after)
+       SELECT $1, $2, a, 'epoch', i, b, c FROM unnest($3::text[], $4::text[], $5::jsonb[], $6::jsonb[]) AS u(a, i, b, c)`,
+      [opts.actor, siteId, textArray(audit.map((a) => a.action)), textArray(audit.map((a) => a.entityId)), textArray(audit.map((a) => a.before)), textArray(audit.map((a) => a.after))],
+    );
+    // The stored epochs go to the results step as they are in memory (no re-read of what was just written).
+    results = await computeResultsForEpochs(
+      tx,
+      siteId,
+      plan.map((p) => {
+        const e = out[p.index] as StoredEpoch;
+        return { id: e.id, time: e.time, points: new Map(resolved[p.index].map((o) => [o.point, o])) };
+      }),
+      { newEpochs: true },
+    );
     await opts.failpoint?.("after-results");
   }
   const newPoints = unknown;
@@ -238,10 +240,10 @@ async function insertObservations(tx: Tx, epochs: { epochId: number; obs: Resolv
   let eid: number[] = [], pid: number[] = [], e: number[] = [], n: number[] = [], h: number[] = [], se: number[] = [], sn: number[] = [], sh: number[] = [];
   const flush = async (): Promise<void> => {
     if (eid.length === 0) return;
-    await tx.$executeRawUnsafe(
+    await tx.query(
       `INSERT INTO "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight")
        SELECT * FROM unnest($1::int[], $2::int[], $3::float8[], $4::float8[], $5::float8[], $6::float8[], $7::float8[], $8::float8[])`,
-      intArray(eid), intArray(pid), floatArray(e), floatArray(n), floatArray(h), floatArray(se), floatArray(sn), floatArray(sh),
+      [intArray(eid), intArray(pid), floatArray(e), floatArray(n), floatArray(h), floatArray(se), floatArray(sn), floatArray(sh)],
     );
     eid = []; pid = []; e = []; n = []; h = []; se = []; sn = []; sh = [];
   };

@@ -6,6 +6,12 @@
  * everything else through `computeElementStrain`. Rows are written with one INSERT … SELECT FROM
  * unnest(…) per 50,000 rows; re-computing an (element, reference, epoch) replaces its row (results are
  * derived), unless the caller says the epochs are new (`newEpochs`), when a plain INSERT is enough.
+ *
+ * Hot path (one live epoch of 2,000 points against ~3,900 elements, test/bench/ingest.ts): the epochs
+ * just stored come in memory; the site's element definitions are cached per database and site and
+ * checked with one aggregate query (count and a sum of row hashes, so any create, edit, disable or
+ * re-baseline, by any process, reloads them); a reference epoch's points are cached by epoch id
+ * (ingest never changes an epoch's observations: a revision is a new epoch id).
  */
 import type { Prisma } from "../db/generated/client.ts";
 import type { Db } from "../db/client.ts";
@@ -13,6 +19,7 @@ import { computeElementStrain, type ElementSpec } from "../../strain/element.ts"
 import { computeTriangleBatch, createTriangleBatchOut, BATCH_OK } from "../../strain/batch.ts";
 import type { ElementKind, ElementMode, SurveyPoint } from "../../strain/types.ts";
 import { floatArray, intArray, textArray } from "../ingest/sql-arrays.ts";
+import { currentDatabaseKey, type Sql } from "../ingest/pg-tx.ts";
 
 export type Tx = Prisma.TransactionClient | Db;
 
@@ -61,14 +68,12 @@ export async function siteReferenceEpochId(tx: Tx, siteId: number): Promise<numb
   return first?.id ?? null;
 }
 
-async function loadEpochPoints(tx: Tx, epochIds: number[]): Promise<Map<number, EpochPoints>> {
-  const rows = await tx.$queryRawUnsafe<
-    { epochId: number; code: string; east: number; north: number; height: number; sigmaEast: number; sigmaNorth: number; sigmaHeight: number }[]
-  >(
+async function loadEpochPoints(tx: Sql, epochIds: number[]): Promise<Map<number, EpochPoints>> {
+  const rows = await tx.query<{ epochId: number; code: string; east: number; north: number; height: number; sigmaEast: number; sigmaNorth: number; sigmaHeight: number }>(
     `SELECT o."epochId", p.code, o.east, o.north, o.height, o."sigmaEast", o."sigmaNorth", o."sigmaHeight"
        FROM "Observation" o JOIN "Point" p ON p.id = o."pointId"
       WHERE o."epochId" = ANY($1::int[])`,
-    intArray(epochIds),
+    [intArray(epochIds)],
   );
   const out = new Map<number, EpochPoints>();
   for (const id of epochIds) out.set(id, new Map());
@@ -107,31 +112,150 @@ function elementRow(el: { id: number; kind: string; mode: string; pointCodes: st
   };
 }
 
+type ElementRow = { id: number; kind: string; mode: string; pointCodes: string[]; referenceEpochId: number | null };
+
+/** Elements of one reference epoch, split once: plan triangles for the batch kernel with their reference arrays, the rest. */
+interface PreparedGroup {
+  batchable: ElementRow[];
+  others: ElementRow[];
+  refXY: Float64Array;
+  sigmaRef: Float64Array;
+}
+
+interface SiteElements {
+  fingerprint: string;
+  elements: ElementRow[];
+  groups: Map<number, PreparedGroup>;
+}
+
+const CACHE_KEY = Symbol.for("epochal.results.cache");
+type Cache = { sites: Map<string, SiteElements>; refPoints: Map<string, EpochPoints> };
+type CacheHolder = { [CACHE_KEY]?: Cache };
+/** Reference epochs whose points are kept (a few per site; each ~2,000 points is ~0.5 MB). */
+const REF_CACHE_SIZE = 16;
+
+function cache(): Cache {
+  const h = globalThis as CacheHolder;
+  h[CACHE_KEY] ??= { sites: new Map(), refPoints: new Map() };
+  return h[CACHE_KEY];
+}
+
+/** Points of the given epochs: from `known` (just stored), the reference cache, or one query for the rest. */
+async function epochPoints(tx: Sql, dbKey: string, ids: readonly number[], known: Map<number, EpochPoints>, refIds: ReadonlySet<number>): Promise<Map<number, EpochPoints>> {
+  const c = cache().refPoints;
+  const out = new Map<number, EpochPoints>();
+  const missing: number[] = [];
+  for (const id of ids) {
+    const k = known.get(id) ?? c.get(`${dbKey}#${id}`);
+    if (k) out.set(id, k);
+    else missing.push(id);
+  }
+  if (missing.length > 0) for (const [id, pts] of await loadEpochPoints(tx, missing)) out.set(id, pts);
+  for (const id of refIds) {
+    const key = `${dbKey}#${id}`;
+    const pts = out.get(id);
+    if (!pts || c.has(key)) continue;
+    c.set(key, pts);
+    if (c.size > REF_CACHE_SIZE) c.delete(c.keys().next().value as string);
+  }
+  return out;
+}
+
+function prepareGroup(els: ElementRow[], ref: EpochPoints): PreparedGroup {
+  const batchable = els.filter((e) => e.kind === "triangle" && e.mode === "plan" && e.pointCodes.length === 3 && new Set(e.pointCodes).size === 3 && e.pointCodes.every((c) => ref.has(c)));
+  const batchIds = new Set(batchable.map((e) => e.id));
+  const others = els.filter((e) => !batchIds.has(e.id));
+  const n = batchable.length;
+  const refXY = new Float64Array(6 * n);
+  const sigmaRef = new Float64Array(6 * n);
+  for (let t = 0; t < n; t++) {
+    const codes = batchable[t].pointCodes;
+    for (let k = 0; k < 3; k++) {
+      const R = ref.get(codes[k]) as SurveyPoint;
+      const o = 6 * t + 2 * k;
+      refXY[o] = R.east;
+      refXY[o + 1] = R.north;
+      sigmaRef[o] = R.sigmaEast;
+      sigmaRef[o + 1] = R.sigmaNorth;
+    }
+  }
+  return { batchable, others, refXY, sigmaRef };
+}
+
+/** Result rows column by column (what the unnest INSERT takes), without one object per row. */
+class ResultColumns {
+  readonly elementId: number[] = [];
+  readonly epochId: number[] = [];
+  readonly referenceEpochId: number[] = [];
+  readonly timeIso: string[] = [];
+  readonly status: string[] = [];
+  readonly values: Record<keyof typeof EMPTY, (number | null)[]> = {
+    greenMax: [], greenMin: [], maxShear: [], arealStrain: [], rotationDeg: [], azimuthMaxDeg: [], engineering: [],
+    sigmaGreenMax: [], sigmaGreenMin: [], sigmaMaxShear: [], sigmaArealStrain: [], sigmaEngineering: [],
+  };
+  get length(): number {
+    return this.elementId.length;
+  }
+  push(r: ResultRow): void {
+    this.elementId.push(r.elementId);
+    this.epochId.push(r.epochId);
+    this.referenceEpochId.push(r.referenceEpochId);
+    this.timeIso.push(r.timeIso);
+    this.status.push(r.status);
+    for (const k of RESULT_KEYS) this.values[k].push(r[k]);
+  }
+}
+const RESULT_KEYS = Object.keys(EMPTY) as (keyof typeof EMPTY)[];
+
+/** An epoch to compute: its id, or (from the ingest service) its id, time and points as just stored. */
+export type EpochToCompute = number | { id: number; time: string | Date; points: EpochPoints };
+
 /**
- * Computes and stores the results of every enabled element of `siteId` at each epoch of `epochIds`.
+ * Computes and stores the results of every enabled element of `siteId` at each of `epochs`.
  * Returns the number of rows written. Call it inside the transaction that stored the epochs.
  */
-export async function computeResultsForEpochs(tx: Tx, siteId: number, epochIds: readonly number[], opts: { newEpochs?: boolean } = {}): Promise<number> {
-  if (epochIds.length === 0) return 0;
-  // Raw query: thousands of triangulated elements deserialise much faster than through findMany.
-  const elements = await tx.$queryRawUnsafe<{ id: number; kind: string; mode: string; pointCodes: string[]; referenceEpochId: number | null }[]>(
-    `SELECT id, kind, mode, "pointCodes", "referenceEpochId" FROM "Element" WHERE "siteId" = $1 AND "disabledAt" IS NULL ORDER BY id`,
-    siteId,
+export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], opts: { newEpochs?: boolean } = {}): Promise<number> {
+  if (epochs.length === 0) return 0;
+  const dbKey = currentDatabaseKey();
+  // One round trip: the site's reference (Site.referenceEpochId, else its first current epoch) and the fingerprint of its elements.
+  const [head] = await tx.query<{ siteRef: number | null; firstEpoch: number | null; fp: string }>(
+    `SELECT s."referenceEpochId" AS "siteRef",
+            (SELECT id FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" ORDER BY time, id LIMIT 1) AS "firstEpoch",
+            (SELECT count(*)::text || ':' || coalesce(sum(hashtext(e.id::text || '|' || e.kind || '|' || e.mode || '|' || array_to_string(e."pointCodes", chr(31)) || '|' || coalesce(e."referenceEpochId"::text, '-'))::bigint), 0)::text
+               FROM "Element" e WHERE e."siteId" = s.id AND e."disabledAt" IS NULL) AS fp
+       FROM "Site" s WHERE s.id = $1`,
+    [siteId],
   );
-  if (elements.length === 0) return 0;
-  const siteRef = await siteReferenceEpochId(tx, siteId);
-  const epochs = await tx.epoch.findMany({ where: { id: { in: [...epochIds] }, siteId }, select: { id: true, time: true } });
-  const refIds = new Set<number>();
-  for (const el of elements) {
-    const r = el.referenceEpochId ?? siteRef;
-    if (r !== null) refIds.add(r);
+  if (!head) return 0;
+  const siteRef = head.siteRef ?? head.firstEpoch;
+  const siteKey = `${dbKey}#${siteId}`;
+  let site = cache().sites.get(siteKey);
+  if (!site || site.fingerprint !== head.fp) {
+    const elements = await tx.query<ElementRow>(`SELECT id, kind, mode, "pointCodes", "referenceEpochId" FROM "Element" WHERE "siteId" = $1 AND "disabledAt" IS NULL ORDER BY id`, [siteId]);
+    site = { fingerprint: head.fp, elements, groups: new Map() };
+    cache().sites.set(siteKey, site);
   }
-  if (refIds.size === 0) return 0;
-  const points = await loadEpochPoints(tx, [...new Set([...refIds, ...epochs.map((e) => e.id)])]);
-  const rows: ResultRow[] = [];
+  const elements = site.elements;
+  if (elements.length === 0) return 0;
+
+  const known = new Map<number, EpochPoints>();
+  const times = new Map<number, string>();
+  const unknownTimes: number[] = [];
+  for (const e of epochs) {
+    if (typeof e === "number") unknownTimes.push(e);
+    else {
+      known.set(e.id, e.points);
+      times.set(e.id, typeof e.time === "string" ? new Date(e.time).toISOString() : e.time.toISOString());
+    }
+  }
+  if (unknownTimes.length > 0) {
+    const rows = await tx.query<{ id: number; time: Date }>(`SELECT id, time FROM "Epoch" WHERE "siteId" = $1 AND id = ANY($2::int[])`, [siteId, intArray(unknownTimes)]);
+    for (const r of rows) times.set(r.id, r.time.toISOString());
+  }
+  const epochIds = epochs.map((e) => (typeof e === "number" ? e : e.id)).filter((id) => times.has(id));
 
   // Group the elements by reference epoch; plan triangles of a group go through the batch kernel together.
-  const byRef = new Map<number, typeof elements>();
+  const byRef = new Map<number, ElementRow[]>();
   for (const el of elements) {
     const r = el.referenceEpochId ?? siteRef;
     if (r === null) continue;
@@ -139,56 +263,69 @@ export async function computeResultsForEpochs(tx: Tx, siteId: number, epochIds: 
     if (!list) byRef.set(r, (list = []));
     list.push(el);
   }
+  if (byRef.size === 0) return 0;
+  const refIds = new Set(byRef.keys());
+  const points = await epochPoints(tx, dbKey, [...new Set([...refIds, ...epochIds])], known, refIds);
+  const rows = new ResultColumns();
+
   for (const [refId, els] of byRef) {
     const ref = points.get(refId) ?? new Map<string, SurveyPoint>();
-    const batchable = els.filter((e) => e.kind === "triangle" && e.mode === "plan" && e.pointCodes.length === 3 && new Set(e.pointCodes).size === 3 && e.pointCodes.every((c) => ref.has(c)));
-    const batchIds = new Set(batchable.map((e) => e.id));
-    const others = els.filter((e) => !batchIds.has(e.id));
-    for (const ep of epochs) {
-      const cur = points.get(ep.id) ?? new Map<string, SurveyPoint>();
-      const head = { epochId: ep.id, referenceEpochId: refId, timeIso: ep.time.toISOString() };
-      for (const el of others) rows.push(elementRow(el, ref, cur, { ...head, elementId: el.id }));
+    // A group is prepared once per reference epoch and element set (ref points never change for an epoch id).
+    let group = site.groups.get(refId);
+    if (!group || !points.has(refId)) {
+      group = prepareGroup(els, ref);
+      if (points.has(refId)) site.groups.set(refId, group);
+    }
+    const { batchable, others } = group;
+    for (const epochId of epochIds) {
+      const cur = points.get(epochId) ?? new Map<string, SurveyPoint>();
+      const timeIso = times.get(epochId) as string;
+      const rowHead = { epochId, referenceEpochId: refId, timeIso };
+      for (const el of others) rows.push(elementRow(el, ref, cur, { ...rowHead, elementId: el.id }));
       // Batch: only triangles whose three points are in this epoch; the rest take the per-element path (missing-point).
-      const tri: typeof batchable = [];
-      for (const el of batchable) {
-        if (el.pointCodes.every((c) => cur.has(c))) tri.push(el);
-        else rows.push(elementRow(el, ref, cur, { ...head, elementId: el.id }));
-      }
-      if (tri.length === 0) continue;
-      const n = tri.length;
-      const refXY = new Float64Array(6 * n), curXY = new Float64Array(6 * n), sigmaRef = new Float64Array(6 * n), sigmaCur = new Float64Array(6 * n);
-      tri.forEach((el, t) => {
-        el.pointCodes.forEach((c, k) => {
-          const R = ref.get(c) as SurveyPoint;
-          const C = cur.get(c) as SurveyPoint;
-          const o = 6 * t + 2 * k;
-          refXY[o] = R.east; refXY[o + 1] = R.north; curXY[o] = C.east; curXY[o + 1] = C.north;
-          sigmaRef[o] = R.sigmaEast; sigmaRef[o + 1] = R.sigmaNorth; sigmaCur[o] = C.sigmaEast; sigmaCur[o + 1] = C.sigmaNorth;
-        });
-      });
-      const out = createTriangleBatchOut(n, true);
-      computeTriangleBatch({ refXY, curXY, sigmaRef, sigmaCur }, out);
-      for (let s = 0; s < n; s++) {
-        const h = { ...head, elementId: tri[s].id };
-        if (out.status[s] !== BATCH_OK) {
-          rows.push({ ...h, status: "degenerate", ...EMPTY });
+      const n = batchable.length;
+      if (n === 0) continue;
+      const curXY = new Float64Array(6 * n);
+      const sigmaCur = new Float64Array(6 * n);
+      const inBatch = new Uint8Array(n);
+      for (let t = 0; t < n; t++) {
+        const codes = batchable[t].pointCodes;
+        const A = cur.get(codes[0]), B = cur.get(codes[1]), C = cur.get(codes[2]);
+        if (!A || !B || !C) {
+          rows.push(elementRow(batchable[t], ref, cur, { ...rowHead, elementId: batchable[t].id }));
+          // Any finite triangle keeps the kernel away from NaN handling; its slot is not read.
+          curXY.set(group.refXY.subarray(6 * t, 6 * t + 6), 6 * t);
           continue;
         }
-        rows.push({
-          ...h,
-          status: "ok",
-          ...EMPTY,
-          greenMax: out.greenMax[s],
-          greenMin: out.greenMin[s],
-          maxShear: out.maxShear[s],
-          arealStrain: out.arealStrain[s],
-          rotationDeg: out.rotationDeg[s],
-          azimuthMaxDeg: num(out.azimuthMaxDeg[s]),
-          sigmaGreenMax: (out.sigmaGreenMax as Float64Array)[s],
-          sigmaGreenMin: (out.sigmaGreenMin as Float64Array)[s],
-          sigmaMaxShear: (out.sigmaMaxShear as Float64Array)[s],
-          sigmaArealStrain: (out.sigmaArealStrain as Float64Array)[s],
-        });
+        inBatch[t] = 1;
+        const o = 6 * t;
+        curXY[o] = A.east; curXY[o + 1] = A.north; curXY[o + 2] = B.east; curXY[o + 3] = B.north; curXY[o + 4] = C.east; curXY[o + 5] = C.north;
+        sigmaCur[o] = A.sigmaEast; sigmaCur[o + 1] = A.sigmaNorth; sigmaCur[o + 2] = B.sigmaEast; sigmaCur[o + 3] = B.sigmaNorth; sigmaCur[o + 4] = C.sigmaEast; sigmaCur[o + 5] = C.sigmaNorth;
+      }
+      const out = createTriangleBatchOut(n, true);
+      computeTriangleBatch({ refXY: group.refXY, curXY, sigmaRef: group.sigmaRef, sigmaCur }, out);
+      const v = rows.values;
+      const sGMax = out.sigmaGreenMax as Float64Array, sGMin = out.sigmaGreenMin as Float64Array, sSh = out.sigmaMaxShear as Float64Array, sAr = out.sigmaArealStrain as Float64Array;
+      for (let s = 0; s < n; s++) {
+        if (inBatch[s] === 0) continue;
+        const ok = out.status[s] === BATCH_OK;
+        rows.elementId.push(batchable[s].id);
+        rows.epochId.push(epochId);
+        rows.referenceEpochId.push(refId);
+        rows.timeIso.push(timeIso);
+        rows.status.push(ok ? "ok" : "degenerate");
+        v.greenMax.push(ok ? out.greenMax[s] : null);
+        v.greenMin.push(ok ? out.greenMin[s] : null);
+        v.maxShear.push(ok ? out.maxShear[s] : null);
+        v.arealStrain.push(ok ? out.arealStrain[s] : null);
+        v.rotationDeg.push(ok ? out.rotationDeg[s] : null);
+        v.azimuthMaxDeg.push(ok ? num(out.azimuthMaxDeg[s]) : null);
+        v.engineering.push(null);
+        v.sigmaGreenMax.push(ok ? sGMax[s] : null);
+        v.sigmaGreenMin.push(ok ? sGMin[s] : null);
+        v.sigmaMaxShear.push(ok ? sSh[s] : null);
+        v.sigmaArealStrain.push(ok ? sAr[s] : null);
+        v.sigmaEngineering.push(null);
       }
     }
   }
@@ -199,11 +336,11 @@ export async function computeResultsForEpochs(tx: Tx, siteId: number, epochIds: 
 const RESULT_CHUNK = 50_000;
 
 /** `fresh`: the epochs were stored in this transaction, so no row can exist yet (plain INSERT, cheaper). */
-async function insertResultRows(tx: Tx, rows: readonly ResultRow[], fresh: boolean): Promise<void> {
+async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean): Promise<void> {
   for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
-    const part = rows.slice(i, i + RESULT_CHUNK);
-    const col = (k: keyof typeof EMPTY): string => floatArray(part.map((r) => r[k]));
-    await tx.$executeRawUnsafe(
+    const j = Math.min(rows.length, i + RESULT_CHUNK);
+    const col = (k: keyof typeof EMPTY): string => floatArray(rows.values[k].slice(i, j));
+    await tx.query(
       `INSERT INTO "ElementResult" ("elementId", "epochId", "referenceEpochId", "time", "status",
          "greenMax", "greenMin", "maxShear", "arealStrain", "rotationDeg", "azimuthMaxDeg", "engineering",
          "sigmaGreenMax", "sigmaGreenMin", "sigmaMaxShear", "sigmaArealStrain", "sigmaEngineering")
@@ -216,23 +353,14 @@ async function insertResultRows(tx: Tx, rows: readonly ResultRow[], fresh: boole
          "azimuthMaxDeg" = EXCLUDED."azimuthMaxDeg", "engineering" = EXCLUDED."engineering",
          "sigmaGreenMax" = EXCLUDED."sigmaGreenMax", "sigmaGreenMin" = EXCLUDED."sigmaGreenMin", "sigmaMaxShear" = EXCLUDED."sigmaMaxShear",
          "sigmaArealStrain" = EXCLUDED."sigmaArealStrain", "sigmaEngineering" = EXCLUDED."sigmaEngineering"`}`,
-      intArray(part.map((r) => r.elementId)),
-      intArray(part.map((r) => r.epochId)),
-      intArray(part.map((r) => r.referenceEpochId)),
-      textArray(part.map((r) => r.timeIso)),
-      textArray(part.map((r) => r.status)),
-      col("greenMax"),
-      col("greenMin"),
-      col("maxShear"),
-      col("arealStrain"),
-      col("rotationDeg"),
-      col("azimuthMaxDeg"),
-      col("engineering"),
-      col("sigmaGreenMax"),
-      col("sigmaGreenMin"),
-      col("sigmaMaxShear"),
-      col("sigmaArealStrain"),
-      col("sigmaEngineering"),
+      [
+        intArray(rows.elementId.slice(i, j)),
+        intArray(rows.epochId.slice(i, j)),
+        intArray(rows.referenceEpochId.slice(i, j)),
+        textArray(rows.timeIso.slice(i, j)),
+        textArray(rows.status.slice(i, j)),
+        ...RESULT_KEYS.map(col),
+      ],
     );
   }
 }

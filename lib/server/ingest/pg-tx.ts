@@ -1,0 +1,75 @@
+/**
+ * A plain `pg` transaction for the ingest hot path. Prisma 7 routes even raw statements through its
+ * query compiler (WebAssembly), which copies every parameter in and out: with the megabyte-sized
+ * array literals of a bulk insert that cost about 160 ms of CPU per 2,000-point epoch (measured with
+ * node --cpu-prof, test/bench/ingest.ts). Ingest therefore writes through its own small pool on the
+ * same DATABASE_URL, in one BEGIN … COMMIT, with the same SQL it sent through Prisma before.
+ *
+ * The pool lives on globalThis (one per URL and process, shared by every bundle copy) and lets the
+ * process exit when idle.
+ */
+import pg from "pg";
+import { databaseUrl } from "../db/client.ts";
+
+/** The one method the ingest and results code needs: a parameterised statement, rows back. */
+export interface Sql {
+  query<R>(text: string, values?: readonly unknown[]): Promise<R[]>;
+}
+
+const KEY = Symbol.for("epochal.ingest.pgPools");
+type Holder = { [KEY]?: Map<string, pg.Pool> };
+
+function pool(url: string): pg.Pool {
+  const h = globalThis as Holder;
+  h[KEY] ??= new Map();
+  let p = h[KEY].get(url);
+  if (!p) {
+    const max = Number(process.env.EPOCHAL_INGEST_POOL ?? 4);
+    p = new pg.Pool({ connectionString: url, max: Number.isFinite(max) && max > 0 ? max : 4, idleTimeoutMillis: 10_000, allowExitOnIdle: true });
+    // An idle client that loses its server (restart) must not crash the process; the next query reconnects.
+    p.on("error", (err) => console.error("epochal: an idle ingest database connection failed", err.message));
+    h[KEY].set(url, p);
+  }
+  return p;
+}
+
+/** The key the results caches use to tell databases apart (ids repeat across databases). */
+export function currentDatabaseKey(): string {
+  return databaseUrl();
+}
+
+/**
+ * Runs `fn` in one transaction on DATABASE_URL; commits when it resolves, rolls back when it throws
+ * (and rethrows). `timeoutMs` bounds every statement (statement_timeout).
+ */
+export async function withPgTransaction<T>(fn: (sql: Sql) => Promise<T>, opts: { timeoutMs?: number } = {}): Promise<T> {
+  const client = await pool(databaseUrl()).connect();
+  const sql: Sql = {
+    query: async <R>(text: string, values?: readonly unknown[]): Promise<R[]> => (await client.query(text, values as unknown[] | undefined)).rows as R[],
+  };
+  let broken = false;
+  try {
+    await client.query("BEGIN");
+    if (opts.timeoutMs) await client.query(`SET LOCAL statement_timeout = ${Math.round(opts.timeoutMs)}`);
+    const result = await fn(sql);
+    await client.query("COMMIT");
+    return result;
+  } catch (err) {
+    try {
+      await client.query("ROLLBACK");
+    } catch {
+      broken = true;
+    }
+    throw err;
+  } finally {
+    client.release(broken);
+  }
+}
+
+/** Closes the pools of this process (tests, shutdown). */
+export async function closeIngestPools(): Promise<void> {
+  const h = globalThis as Holder;
+  const pools = [...(h[KEY]?.values() ?? [])];
+  h[KEY]?.clear();
+  await Promise.all(pools.map((p) => p.end()));
+}
