@@ -96,14 +96,33 @@ function assertSameOrigin(req: Request, actor: Actor | null): void {
   if (originHost !== host) throw new AppError("forbidden", "Cross-site request refused.");
 }
 
+// Lost or refused database connections (Prisma's codes, its driver adapter's error kinds, PostgreSQL's
+// shutdown and connection SQLSTATEs, socket errors): the client is told 503, not a raw 500.
+const DB_DOWN_CODES = new Set(["P1001", "P1002", "P1017", "P2024", "57P01", "57P02", "57P03", "08000", "08001", "08003", "08004", "08006", "ECONNREFUSED", "ECONNRESET", "EPIPE", "ETIMEDOUT"]);
+const DB_DOWN_KINDS = new Set(["DatabaseNotReachable", "ConnectionClosed", "SocketTimeout", "TooManyConnections"]);
+
+/** True when an error (or its cause, or its driver-adapter error) says the database cannot be reached. */
+export function isDatabaseUnavailable(err: unknown, depth = 0): boolean {
+  if (!err || typeof err !== "object" || depth > 4) return false;
+  const e = err as { code?: unknown; kind?: unknown; originalCode?: unknown; cause?: unknown; meta?: { driverAdapterError?: unknown } };
+  if ((typeof e.code === "string" && DB_DOWN_CODES.has(e.code)) || (typeof e.originalCode === "string" && DB_DOWN_CODES.has(e.originalCode))) return true;
+  if (typeof e.kind === "string" && DB_DOWN_KINDS.has(e.kind)) return true;
+  if (/^Connection terminated|^Can't reach database server/.test((err as Error).message ?? "")) return true;
+  return isDatabaseUnavailable(e.cause, depth + 1) || isDatabaseUnavailable(e.meta?.driverAdapterError, depth + 1);
+}
+
 export function errorResponse(err: unknown): Response {
+  if (!isAppError(err) && isDatabaseUnavailable(err)) {
+    console.error("epochal: database unavailable in a route:", (err as Error).message?.split("\n").filter(Boolean).pop());
+    err = new AppError("unavailable", "The database is not reachable at the moment; the request was not carried out. Retry in a few seconds.", { details: { retryAfterS: 5 } });
+  }
   if (isAppError(err)) {
     const body: Record<string, unknown> = { error: { code: err.code, message: err.message } };
     if (err.errors) body.errors = err.errors;
     if (err.details) Object.assign(body, err.details);
     const headers: Record<string, string> = { "Cache-Control": "no-store" };
     const retry = err.details?.retryAfterS;
-    if (err.code === "rate_limited" && typeof retry === "number") headers["Retry-After"] = String(Math.ceil(retry));
+    if ((err.code === "rate_limited" || err.code === "unavailable") && typeof retry === "number") headers["Retry-After"] = String(Math.ceil(retry));
     return Response.json(body, { status: err.status, headers });
   }
   console.error("epochal: unexpected error in a route", err);
