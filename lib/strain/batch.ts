@@ -79,6 +79,26 @@ export interface TriangleBatchInput {
 }
 
 const RAD_TO_DEG = 180 / Math.PI;
+/** fdlibm `s_atan.c` (Sun Microsystems 1993) uses its odd polynomial alone below 7/16 (about 1 ulp). */
+const ATAN_POLY_LIMIT = 0.4375;
+const AT0 = 3.33333333333329318027e-1, AT1 = -1.99999999998764832476e-1, AT2 = 1.42857142725034663711e-1;
+const AT3 = -1.1111110405462355788e-1, AT4 = 9.09088713343650656196e-2, AT5 = -7.69187620504482999495e-2;
+const AT6 = 6.66107313738753120669e-2, AT7 = -5.83357013379057348645e-2, AT8 = 4.97687799461593236017e-2;
+const AT9 = -3.6531572744216915527e-2, AT10 = 1.62858201153657823623e-2;
+
+/**
+ * atan(t) for |t| < 7/16 by the fdlibm polynomial (same coefficients as atan2.ts). The polar rotation
+ * of survey data is a fraction of a degree, so atan2(y, x) with x > 0 and |y| < 7/16·x takes this one
+ * division instead of the two square roots and two divisions of the general path; the branch is
+ * predictable on real data.
+ */
+function atanSmall(x: number): number {
+  const z = x * x;
+  const w = z * z;
+  const s1 = z * (AT0 + w * (AT2 + w * (AT4 + w * (AT6 + w * (AT8 + w * AT10)))));
+  const s2 = w * (AT1 + w * (AT3 + w * (AT5 + w * (AT7 + w * AT9))));
+  return x - x * (s1 + s2);
+}
 /** Slots per block of the two-pass loop (see computeTriangleBatch). */
 const BLOCK = 256;
 
@@ -250,7 +270,8 @@ export function computeTriangleBatch(input: TriangleBatchInput, out: TriangleBat
     let az = 90 - 0.5 * atan2WithNorm(2 * green[q + 2], green[q] - green[q + 1], shear) * RAD_TO_DEG;
     if (az >= 180) az -= 180;
     azimuthMaxDeg[s] = shear >= ISOTROPY_TOLERANCE ? az : NaN;
-    const rot = atan2Fast(F[o + 2] - F[o + 1], F[o] + F[o + 3]) * RAD_TO_DEG;
+    const ry = F[o + 2] - F[o + 1], rx = F[o] + F[o + 3];
+    const rot = (rx > 0 && Math.abs(ry) < ATAN_POLY_LIMIT * rx ? atanSmall(ry / rx) : atan2Fast(ry, rx)) * RAD_TO_DEG;
     rotationDeg[s] = rot <= -180 ? rot + 360 : rot;
   }
   }
