@@ -2,6 +2,7 @@
  * Ingest benchmark (not a test): prints figures.
  *
  *   npx tsx test/bench/ingest.ts [--scale 0.1 (default) | 1] [--json] [--live-posts 40] [--mode http|in-process]
+ *       [--only backfill|live] [--live-points 2000] [--no-build]
  *
  * 1. Backfill: a year of 15-minute epochs (35,040) of 500 points = 17.5 M observations at scale 1,
  *    as epoch CSV text in chunks of 100 epochs (the way `epochal push` sends it), parsed and stored by
@@ -11,7 +12,8 @@
  *    is inside the ingest timer.
  * 2. Live: one epoch of 2,000 points posted ≥ 30 times to a site with ~3,900 plan triangles and
  *    baselines; each post is timed from request to response (stored, results computed, committed).
- *    --mode http (default) builds into .next-bench-ingest and runs `next start`; --mode in-process
+ *    --mode http (default) builds into EPOCHAL_DIST_DIR (default .next-bench; --no-build uses it as it
+ *    is) and runs `next start`; --mode in-process
  *    calls the route handler directly (say which when quoting figures).
  *
  * Needs DATABASE_URL's server (a fresh database is created and dropped), or the embedded default.
@@ -41,7 +43,8 @@ const opt = (name: string): string | undefined => {
 // shared 2-core machine. `--scale 1` runs it.
 const scale = Number(opt("--scale") ?? 0.1);
 const asJson = args.includes("--json");
-const livePosts = Math.max(30, Number(opt("--live-posts") ?? 40));
+// At least 30 posts for a p95 worth quoting; the scaling runs (test/bench/scaling.ts) ask for fewer at large sizes.
+const livePosts = Math.max(5, Number(opt("--live-posts") ?? 40));
 const modeArg = opt("--mode") ?? "http";
 /** `--only backfill` or `--only live`: run one half (profiling, scaling runs). */
 const only = opt("--only") ?? "all";
@@ -237,13 +240,15 @@ async function main(): Promise<void> {
     let post: (body: string) => Promise<number>;
     if (mode === "http") {
       try {
-        process.env.EPOCHAL_DIST_DIR = ".next-bench-ingest";
-        const { ensureBuild } = await import("../../lib/server/cli/serve-core.ts");
-        log("live: building the production server into .next-bench-ingest (next build) …");
-        ensureBuild(projectRoot());
+        process.env.EPOCHAL_DIST_DIR ??= ".next-bench";
+        if (!args.includes("--no-build")) {
+          const { ensureBuild } = await import("../../lib/server/cli/serve-core.ts");
+          log(`live: building the production server into ${process.env.EPOCHAL_DIST_DIR} when stale (next build) …`);
+          ensureBuild(projectRoot());
+        }
         const port = await freePort();
         server = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-p", String(port), "-H", "127.0.0.1"], {
-          env: { ...process.env, DATABASE_URL: url, NEXT_TELEMETRY_DISABLED: "1", EPOCHAL_DIST_DIR: ".next-bench-ingest" },
+          env: { ...process.env, DATABASE_URL: url, NEXT_TELEMETRY_DISABLED: "1", EPOCHAL_DIST_DIR: process.env.EPOCHAL_DIST_DIR },
           stdio: ["ignore", "ignore", "inherit"],
         });
         const baseUrl = `http://127.0.0.1:${port}`;
@@ -312,7 +317,12 @@ async function main(): Promise<void> {
   }
   if (asJson) {
     const { backfillObservationsPerS, copyObservationsPerS, backfillRatioToCopy, liveEpochP50Ms, liveEpochP95Ms, ...rest } = out;
-    console.log(JSON.stringify({ backfillObservationsPerS, copyObservationsPerS, backfillRatioToCopy, liveEpochP50Ms, liveEpochP95Ms, ...rest }));
+    const notes: Record<string, string> = {};
+    if (backfillObservationsPerS !== undefined)
+      notes.backfill = `scale ${out.scale}: ${Number(out.backfillObservations).toLocaleString("en-GB")} observations per side, ingest ${Number(backfillObservationsPerS).toLocaleString("en-GB")}/s vs COPY ${Number(copyObservationsPerS).toLocaleString("en-GB")}/s (A-B-B-A)`;
+    if (liveEpochP95Ms !== undefined)
+      notes.liveEpoch = `${LIVE_POINTS} points, ${out.liveElements} elements, ${out.livePosts} posts, ${out.liveMode === "http" ? "through next start over HTTP (stored, results, committed, alerts evaluated)" : "route handler in-process (no HTTP server; alerting listener not registered)"}`;
+    console.log(JSON.stringify({ backfillObservationsPerS, copyObservationsPerS, backfillRatioToCopy, liveEpochP50Ms, liveEpochP95Ms, ...rest, notes }));
   }
 }
 

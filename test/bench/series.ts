@@ -3,7 +3,7 @@
  * API route calls (`elementSeries`: the raw read, the typed-array views and the LTTB downsampling to
  * the default 2,000 points, and the formatting with local times). Server time only, no HTTP.
  *
- *   npx tsx test/bench/series.ts [--json] [--quick]
+ *   npx tsx test/bench/series.ts [--json] [--quick] [--epochs N]
  *
  * Makes its own database on DATABASE_URL's server (or an embedded PostgreSQL) and drops it after.
  * Data: seeded, written straight into Epoch and ElementResult with generate_series. Prints the median
@@ -16,7 +16,9 @@ import { createTestDatabase } from "../support/database.ts";
 
 const json = process.argv.includes("--json");
 const quick = process.argv.includes("--quick");
-const EPOCHS = quick ? 5_000 : 35_040;
+const epochsArg = process.argv.indexOf("--epochs");
+/** A year of 15-minute epochs; `--epochs N` for the scaling runs (test/bench/scaling.ts). */
+const EPOCHS = epochsArg >= 0 ? Number(process.argv[epochsArg + 1]) : quick ? 5_000 : 35_040;
 const RUNS = quick ? 5 : 25;
 
 /** utime + stime of a local process in ms (clock ticks of 10 ms), or null when /proc cannot tell. */
