@@ -123,7 +123,7 @@ describe("hostile input corpus", () => {
       const after = await globalCounts(h.pool);
       if (c.knownIssue) figures.knownIssues.push(`${c.name}: answered ${r.status} (${c.knownIssue})`);
       if (c.status >= 400) {
-        if (JSON.stringify(after) !== JSON.stringify(before)) figures.rowsWrittenByRejected++;
+        if (!c.knownIssue && JSON.stringify(after) !== JSON.stringify(before)) figures.rowsWrittenByRejected++;
         expect(after, "nothing written").toEqual(before);
         // A 413 may reach the client as a reset connection when the server stops reading early.
         if (c.status === 413 && r.status === 0) {
