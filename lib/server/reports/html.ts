@@ -61,6 +61,7 @@ function cssFor(opts: ReportHtmlOptions, headerText: string, footerText: string)
 .report th, .report td { text-align: left; padding: 3px 6px; border-bottom: 1px solid #d9d4ca; vertical-align: top; font-variant-numeric: tabular-nums; }
 .report th { color: #52606b; font-weight: 600; }
 .report td.num, .report th.num { text-align: right; white-space: nowrap; }
+.report table.elements td:first-child { width: 30%; }
 .report tr, .report .chart-fig, .report .rpt-alert, .report figure.plan-fig { break-inside: avoid; }
 .report .chart-fig { margin: 4px 0 10px; }
 .report .chart-fig figcaption, .report .plan-fig figcaption { font-size: 11px; color: #52606b; }
@@ -229,8 +230,8 @@ export function renderReportHtml(d: ReportData, opts: ReportHtmlOptions): Report
 <section data-section="table"><h2>Elements that moved most or reached a level</h2>
 ${
   d.elements.length
-    ? `<p class="muted">Cumulative values against the reference epoch at the last epoch of the period${d.endEpoch ? ` (${esc(t(d, d.endEpoch.timeMs))})` : ""}; change = that value − the last value at or before the period's start.</p>
-<table><thead><tr><th>Element</th><th>Quantity</th><th class="num">Value (µε)</th><th class="num">σ (µε)</th><th>Significant</th><th>Level</th><th class="num">Change (µε)</th><th>Shown because</th></tr></thead><tbody>
+    ? `<p class="muted">Cumulative values against the reference epoch at the last epoch of the period${d.endEpoch ? ` (${esc(t(d, d.endEpoch.timeMs))})` : ""}; change = that value − the last value at or before the period's start. Level: the highest level of the element's rule that the value reaches (an alert keeps its level until the value falls back by the rule's hysteresis, so it can show a higher one).</p>
+<table class="elements"><thead><tr><th>Element</th><th>Quantity</th><th class="num">Value (µε)</th><th class="num">σ (µε)</th><th>Significant</th><th>Level</th><th class="num">Change (µε)</th><th>Shown because</th></tr></thead><tbody>
 ${d.elements.map((e) => elementRow(d, e)).join("\n")}
 </tbody></table>`
     : `<p>No element has results in the period.</p>`

@@ -13,7 +13,8 @@ export const CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--
 
 export function chromiumPath(): string | null {
   const p = process.env.EPOCHAL_CHROMIUM || "/usr/bin/chromium";
-  return existsSync(p) ? p : null;
+  // A runtime path, not a project file: keep the bundler from tracing the whole project for it.
+  return existsSync(/*turbopackIgnore: true*/ p) ? p : null;
 }
 
 /** At most this long for one PDF (launch, layout, print). */
