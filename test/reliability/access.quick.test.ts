@@ -38,7 +38,7 @@ beforeAll(async () => {
   signInUser = { id: await createUser(h.pool, { email, passwordHash: hash }), email };
 });
 
-/** A fresh user signed in over HTTP, or a fresh token, so calls cannot disturb each other. */
+/** A fresh user signed in over HTTP (POST /api/v1/session), or a fresh token. */
 async function credentialsFor(caller: Caller): Promise<{ cookie?: string; bearer?: string; userId: number | null }> {
   if (caller.kind === "anonymous") return { userId: null };
   if (caller.kind === "token") return { bearer: await createToken(h.pool, caller.onOtherSite ? otherSite.id : site.id, caller.scope), userId: null };
@@ -48,11 +48,21 @@ async function credentialsFor(caller: Caller): Promise<{ cookie?: string; bearer
   return { cookie: await signIn(h.server.baseUrl, email, PASSWORD), userId: id };
 }
 
+// One signed-in user per caller kind, reused across rows; rows that end or change the caller's
+// session (sign-out, password change) get a fresh one.
+const cached = new Map<string, Promise<{ cookie?: string; bearer?: string; userId: number | null }>>();
+const ENDS_SESSION = new Set(["DELETE /api/v1/session", "POST /api/v1/me/password"]);
+function credentialsForRow(row: AccessRow, caller: Caller) {
+  if (caller.kind === "token" || caller.kind === "anonymous" || ENDS_SESSION.has(`${row.method} ${row.route}`)) return credentialsFor(caller);
+  if (!cached.has(caller.name)) cached.set(caller.name, credentialsFor(caller));
+  return cached.get(caller.name) as Promise<{ cookie?: string; bearer?: string; userId: number | null }>;
+}
+
 const rows = ACCESS_TABLE.map((r) => [`${r.method} ${r.route}`, r] as [string, AccessRow]);
 
 describe.each(rows)("HTTP %s", (_label, row) => {
   it.each(CALLERS.map((c) => [c.name, c] as [string, Caller]))("called as %s over HTTP answers as the access table expects", async (_name, caller) => {
-    const cred = await credentialsFor(caller);
+    const cred = await credentialsForRow(row, caller);
     const fx: AccessFixture = { db, site, signInUser, password: PASSWORD, callerUserId: cred.userId, unique };
     const { request } = await buildRequest(row, fx, { baseUrl: h.server.baseUrl, cookie: cred.cookie, bearer: cred.bearer });
     const headers = new Headers(request.headers);
