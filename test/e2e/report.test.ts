@@ -159,3 +159,61 @@ describe("reports over HTTP", () => {
     }
   });
 });
+
+describe("the CSV import page in Chromium", () => {
+  it.skipIf(!chromiumPath)("maps another tool's columns (mm, own time format), shows errors at source lines, then stores the epoch through the ingest API", async () => {
+    const own = `e2e-import-${tag}`;
+    const c = new pg.Client({ connectionString: inject("e2eDatabaseUrl") });
+    await c.connect();
+    let siteId = 0;
+    try {
+      const site = await c.query<{ id: number }>(`insert into "Site"(slug, name, "timeZone") values ($1, 'E2E import site', 'Europe/Zurich') returning id`, [own]);
+      siteId = site.rows[0].id;
+      const u = await c.query<{ id: number }>(`select id from "User" where email = $1`, [email]);
+      await c.query(`insert into "Membership"("userId", "siteId", role) values ($1, $2, 'surveyor')`, [u.rows[0].id, siteId]);
+    } finally {
+      await c.end();
+    }
+    const browser = await chromium.launch({
+      executablePath: chromiumPath as string,
+      args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
+    });
+    try {
+      const ctx = await browser.newContext({ viewport: { width: 1280, height: 1100 } });
+      const eq = cookie.indexOf("=");
+      await ctx.addCookies([{ name: cookie.slice(0, eq), value: cookie.slice(eq + 1), url: baseUrl }]);
+      const page = await ctx.newPage();
+      expect((await page.goto(`${baseUrl}/sites/${own}/setup/import`))?.status()).toBe(200);
+      const bad = "Pt,Y (mm),X (mm),Z (mm),When\nA1,2000000,1000000,100000,01.10.2026 08:00\nA2,2000000,oops,100000,01.10.2026 08:00\n";
+      await page.setInputFiles("#file", { name: "other-tool.csv", mimeType: "text/csv", buffer: Buffer.from(bad) });
+      await page.selectOption("#col-time", "When");
+      await page.selectOption("#tf", "pattern");
+      await page.fill("#tp", "dd.MM.yyyy HH:mm");
+      await expect.poll(() => page.textContent("[data-testid=mapped-errors]")).toContain("line 3, X (mm)");
+      expect(await page.isDisabled("[data-testid=import-upload]")).toBe(true);
+      const good = "Pt,Y (mm),X (mm),Z (mm),When\nA1,2000000,1000000,100000,01.10.2026 08:00\nA2,2000000,1010000,100500,01.10.2026 08:00\nA3,2008660,1005000,101000,01.10.2026 08:00\n";
+      await page.setInputFiles("#file", { name: "other-tool.csv", mimeType: "text/csv", buffer: Buffer.from(good) });
+      await expect.poll(() => page.textContent("[data-testid=mapped-summary]")).toContain("3 rows converted");
+      const dir = mkdtempSync(join(tmpdir(), "epochal-import-e2e-"));
+      await page.screenshot({ path: join(dir, "import.png"), fullPage: true });
+      await page.click("[data-testid=import-upload]");
+      await expect.poll(() => page.textContent("[data-testid=import-status]"), { timeout: 20_000 }).toContain("Stored: 1 epoch");
+      console.log(`[e2e report] import page screenshot in ${dir}`);
+    } finally {
+      await browser.close();
+    }
+    const c2 = new pg.Client({ connectionString: inject("e2eDatabaseUrl") });
+    await c2.connect();
+    try {
+      const obs = await c2.query<{ code: string; east: number; north: number; height: number; time: Date }>(
+        `select p.code, o.east, o.north, o.height, e.time from "Observation" o join "Epoch" e on e.id = o."epochId" join "Point" p on p.id = o."pointId" where e."siteId" = $1 order by p.code`,
+        [siteId],
+      );
+      expect(obs.rows.map((r) => [r.code, r.east, r.north, r.height])).toEqual([["A1", 1000, 2000, 100], ["A2", 1010, 2000, 100.5], ["A3", 1005, 2008.66, 101]]);
+      // 08:00 in Zurich on 1 October 2026 (CEST, UTC+02:00) is 06:00 UTC.
+      expect(obs.rows[0].time.toISOString()).toBe("2026-10-01T06:00:00.000Z");
+    } finally {
+      await c2.end();
+    }
+  }, 120_000);
+});
