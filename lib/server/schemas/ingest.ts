@@ -24,7 +24,9 @@ export const MAX_POINT_CODE_LENGTH = 100;
 export const MAX_BOUND_ERRORS = 100;
 
 // eslint-disable-next-line no-control-regex
-const CONTROL_RE = /[\u0000-\u001f\u007f]/;
+// C0 and C1 controls, DEL, and the invisible direction marks and overrides that can make a code
+// display as something else.
+const CONTROL_RE = /[\u0000-\u001f\u007f-\u009f\u200e\u200f\u202a-\u202e\u2066-\u2069]/;
 
 /** Every bound above, checked over all epochs; returns the errors (empty when all pass). */
 export function checkEpochBounds(epochs: readonly EpochInput[], nowMs: number): InputError[] {
