@@ -131,10 +131,10 @@ const exponent = (i: number): string => {
 };
 if (json) console.log(JSON.stringify({ rows: rows.map((r, i) => ({ ...r, exponent: exponent(i) || null })) }));
 else {
-  console.log("\nbenchmark                    size                     time              ns per item   exponent   load   note");
+  console.log("\nbenchmark                    size                        time              ns per item   exponent   load   note");
   rows.forEach((r, i) =>
     console.log(
-      `${r.what.padEnd(28)} ${`${r.size.toLocaleString("en-GB")} ${r.unit}`.padEnd(24)} ${`${r.figure.toFixed(1)} ${r.figureUnit}`.padEnd(17)} ${r.perItem.toFixed(1).padStart(11)}   ${exponent(i).padStart(8)}   ${r.load.toFixed(1).padStart(4)}   ${r.note ?? ""}`,
+      `${r.what.padEnd(28)} ${`${r.size.toLocaleString("en-GB")} ${r.unit}`.padEnd(27)} ${`${r.figure.toFixed(1)} ${r.figureUnit}`.padEnd(17)} ${r.perItem.toFixed(1).padStart(11)}   ${exponent(i).padStart(8)}   ${r.load.toFixed(1).padStart(4)}   ${r.note ?? ""}`,
     ),
   );
   console.log("exponent: log(t₂/t₁)/log(n₂/n₁) against the size above; 1 = linear. Sizes 10× apart; --long adds the largest.");
