@@ -88,3 +88,77 @@ export function planDisplacement(
   const significant = vE > 0 && vN > 0 ? (dE * dE) / vE + (dN * dN) / vN > CHI2_95_2D : null;
   return { dE, dN, dH, significant };
 }
+
+/**
+ * The field as sent over the wire: one array per column (names are not repeated per element) and
+ * numbers kept to 6 significant digits (strain: well below any survey's resolution), so a site of a
+ * thousand elements costs tens of kilobytes rather than hundreds.
+ */
+export interface PackedField {
+  mode: FieldMode;
+  epoch: { id: number; timeMs: number };
+  from: { id: number; timeMs: number };
+  k: number;
+  elements: { [K in keyof FieldElement]: FieldElement[K][] };
+  points: { code: string[]; dE: number[]; dN: number[]; dH: number[]; significant: (boolean | null)[] };
+}
+
+const ELEMENT_KEYS = [
+  "id",
+  "status",
+  "greenMax",
+  "greenMin",
+  "maxShear",
+  "arealStrain",
+  "rotationDeg",
+  "azimuthMaxDeg",
+  "engineering",
+  "sigmaGreenMax",
+  "sigmaGreenMin",
+  "sigmaMaxShear",
+  "sigmaArealStrain",
+  "sigmaEngineering",
+] as const satisfies readonly (keyof FieldElement)[];
+
+/** 6 significant digits; null and non-finite stay null. */
+export function round6(v: number | null): number | null {
+  return v === null || !Number.isFinite(v) ? null : Number(v.toPrecision(6));
+}
+
+export function packField(f: StrainField): PackedField {
+  const cols = {} as Record<(typeof ELEMENT_KEYS)[number], unknown[]>;
+  for (const k of ELEMENT_KEYS) cols[k] = new Array(f.elements.length);
+  f.elements.forEach((e, i) => {
+    for (const k of ELEMENT_KEYS) {
+      const v = e[k];
+      cols[k][i] = k === "id" || k === "status" ? v : round6(v as number | null);
+    }
+  });
+  return {
+    mode: f.mode,
+    epoch: f.epoch,
+    from: f.from,
+    k: f.k,
+    elements: cols as PackedField["elements"],
+    points: {
+      code: f.points.map((p) => p.code),
+      // Displacements to 0.01 mm.
+      dE: f.points.map((p) => Math.round(p.dE * 1e5) / 1e5),
+      dN: f.points.map((p) => Math.round(p.dN * 1e5) / 1e5),
+      dH: f.points.map((p) => Math.round(p.dH * 1e5) / 1e5),
+      significant: f.points.map((p) => p.significant),
+    },
+  };
+}
+
+export function unpackField(p: PackedField): StrainField {
+  const n = p.elements.id.length;
+  const elements: FieldElement[] = new Array(n);
+  for (let i = 0; i < n; i++) {
+    const e = {} as Record<string, unknown>;
+    for (const k of ELEMENT_KEYS) e[k] = (p.elements[k] as unknown[])[i] ?? null;
+    elements[i] = e as unknown as FieldElement;
+  }
+  const points: FieldPoint[] = p.points.code.map((code, i) => ({ code, dE: p.points.dE[i], dN: p.points.dN[i], dH: p.points.dH[i], significant: p.points.significant[i] ?? null }));
+  return { mode: p.mode, epoch: p.epoch, from: p.from, k: p.k, elements, points };
+}

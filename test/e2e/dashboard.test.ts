@@ -156,7 +156,7 @@ describe.skipIf(!chromiumPath)("dashboard in Chromium (production build)", () =>
     expect(after.filter((f, i) => f !== before[i]).length).toBeGreaterThan(0);
     const signs = await page.$$eval("section.plan svg .elements .el", (els) => els.map((e) => e.getAttribute("data-sign")));
     expect(signs).toContain("contraction");
-    await expect(page.locator('svg .elements polygon[fill="url(#hatch-contraction)"]').count()).resolves.toBeGreaterThan(0);
+    await expect(page.locator('svg .elements path.hatch').count()).resolves.toBe(1);
   });
 
   it("the epoch scrubber steps back an epoch, fetches its field and shows its time; the increment mode compares two epochs", async () => {
@@ -177,9 +177,9 @@ describe.skipIf(!chromiumPath)("dashboard in Chromium (production build)", () =>
     await waitPlanReady(page);
     const inc = page.waitForResponse((r) => r.url().includes("/field?") && r.url().includes("from=") && r.status() === 200);
     await page.check("input[name=compare] >> nth=1");
-    const body = (await (await inc).json()) as { mode: string; elements: unknown[] };
+    const body = (await (await inc).json()) as { mode: string; elements: { id: number[] } };
     expect(body.mode).toBe("increment");
-    expect(body.elements.length).toBeGreaterThan(0);
+    expect(body.elements.id.length).toBeGreaterThan(0);
     await page.screenshot({ path: join(SHOTS, "e2e-plan-increment.png"), fullPage: false });
   });
 

@@ -2,6 +2,15 @@
 /** Step or play through epochs; compare cumulative (against the reference) or the increment between two epochs. */
 import { formatSiteTime } from "@/lib/plan/index.ts";
 
+/** Up to about 300 epochs to compare from: evenly spread over the history, plus the few before the shown one and the current choice. */
+function fromChoices(n: number, index: number, fromIndex: number): number[] {
+  if (n <= 300) return Array.from({ length: n }, (_, i) => i);
+  const last = n - 1;
+  const picks = new Set<number>([fromIndex, ...Array.from({ length: 280 }, (_, j) => Math.round((j * last) / 279))]);
+  for (let d = 1; d <= 10; d++) if (index - d >= 0) picks.add(index - d);
+  return [...picks].filter((i) => i >= 0 && i <= last).sort((a, b) => a - b);
+}
+
 export function EpochScrubber(p: {
   timeZone: string;
   epochIds: number[];
@@ -55,22 +64,17 @@ export function EpochScrubber(p: {
         <label className="check">
           <input type="radio" name="compare" checked={p.compare === "increment"} onChange={() => p.onCompare("increment")} /> Increment since
         </label>
-        <select value={p.fromIndex} onChange={(e) => p.onFromIndex(Number(e.target.value))} disabled={p.compare !== "increment"} aria-label="Compare from epoch">
-          {p.epochTimesMs.length <= 2000
-            ? p.epochTimesMs.map((ms, i) => (
-                <option key={p.epochIds[i]} value={i}>
-                  {formatSiteTime(ms, p.timeZone)}
-                </option>
-              ))
-            : // Long histories: offer every n-th epoch plus the neighbours of the current one.
-              [...new Set([...Array.from({ length: 200 }, (_, j) => Math.round((j * last) / 199)), p.index - 1, p.index, p.fromIndex].filter((i) => i >= 0 && i <= last))]
-                .sort((a, b) => a - b)
-                .map((i) => (
-                  <option key={p.epochIds[i]} value={i}>
-                    {formatSiteTime(p.epochTimesMs[i], p.timeZone)}
-                  </option>
-                ))}
-        </select>
+        {p.compare === "increment" ? (
+          <select value={p.fromIndex} onChange={(e) => p.onFromIndex(Number(e.target.value))} aria-label="Compare from epoch">
+            {fromChoices(p.epochIds.length, p.index, p.fromIndex).map((i) => (
+              <option key={p.epochIds[i]} value={i}>
+                {formatSiteTime(p.epochTimesMs[i], p.timeZone)}
+              </option>
+            ))}
+          </select>
+        ) : (
+          <span className="muted small">{p.epochTimesMs[p.fromIndex] !== undefined ? formatSiteTime(p.epochTimesMs[p.fromIndex], p.timeZone) : ""}</span>
+        )}
       </div>
     </div>
   );

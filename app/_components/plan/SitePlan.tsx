@@ -5,7 +5,7 @@
  * scrubber (step, play, compare two epochs). Receives plain data; fetches the field of other epochs
  * from GET /api/v1/sites/{slug}/field.
  */
-import { memo, useCallback, useEffect, useMemo, useRef, useState } from "react";
+import { memo, useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState } from "react";
 import { useRouter } from "next/navigation";
 import {
   clientToSvg,
@@ -27,7 +27,9 @@ import {
   PLAN_QUANTITIES,
   unitsPerPixel,
   zoomView,
+  unpackField,
   type FieldElement,
+  type PackedField,
   type PlanQuantity,
   type StrainField,
   type StrainUnit,
@@ -57,7 +59,8 @@ export interface SitePlanProps {
   epochIds: number[];
   epochTimesMs: number[];
   referenceEpochId: number | null;
-  initialField: StrainField | null;
+  /** Points' east/north are relative to a local origin (the page subtracts it; see page.tsx). */
+  initialField: PackedField | null;
   initialQuantity?: PlanQuantity;
   initialUnit?: StrainUnit;
 }
@@ -116,13 +119,16 @@ export function SitePlan(props: SitePlanProps) {
   const [lockScale, setLockScale] = useState(false);
   const [lockedMax, setLockedMax] = useState<number | null>(null);
 
+  const initialField = useMemo(() => (props.initialField ? unpackField(props.initialField) : null), [props.initialField]);
+  // The heavy SVG layers are drawn in the browser only: server HTML stays small and hydration quick.
+  const [mounted, setMounted] = useState(false);
   const lastIndex = epochIds.length - 1;
-  const initialIndex = props.initialField ? Math.max(0, epochIds.indexOf(props.initialField.epoch.id)) : lastIndex;
+  const initialIndex = initialField ? Math.max(0, epochIds.indexOf(initialField.epoch.id)) : lastIndex;
   const [index, setIndex] = useState(initialIndex);
   const [compare, setCompare] = useState<"cumulative" | "increment">("cumulative");
   const [fromIndex, setFromIndex] = useState(Math.max(0, lastIndex - 1));
   const [playing, setPlaying] = useState(false);
-  const [field, setField] = useState<StrainField | null>(props.initialField);
+  const [field, setField] = useState<StrainField | null>(initialField);
   const [loading, setLoading] = useState(false);
   const [loadError, setLoadError] = useState<string | null>(null);
   const cache = useRef(new Map<string, StrainField>());
@@ -136,27 +142,32 @@ export function SitePlan(props: SitePlanProps) {
     return inElements.length >= 2 ? inElements : points;
   }, [points, elements]);
   const home = useMemo(() => fitViewBox(fitPoints, size.w / size.h), [fitPoints, size.w, size.h]);
-  const [view, setView] = useState<ViewBox>(home);
+  // null: the fitted view (it follows the drawing's size); a box once the user zooms or pans.
+  const [userView, setUserView] = useState<ViewBox | null>(null);
+  const view = userView ?? home;
   const homeRef = useRef(home);
-  useEffect(() => {
-    // A new drawing size refits only while the user has not moved the view.
-    setView((v) => (v === homeRef.current ? home : v));
-    homeRef.current = home;
-  }, [home]);
+  homeRef.current = home;
+  const setView = useCallback((v: ViewBox | ((cur: ViewBox) => ViewBox)) => {
+    setUserView((cur) => (typeof v === "function" ? v(cur ?? homeRef.current) : v === homeRef.current ? null : v));
+  }, []);
 
-  useEffect(() => {
+  // Measure the drawing area before the first paint and draw the layers once, at the right size.
+  useLayoutEffect(() => {
     const el = svgRef.current?.parentElement;
     if (!el) return;
+    const sizeOf = (w: number) => ({ w: Math.round(w), h: Math.round(Math.max(320, Math.min(w * 0.62, 760))) });
+    if (el.clientWidth > 0) setSize(sizeOf(el.clientWidth));
+    setMounted(true);
     const ro = new ResizeObserver((entries) => {
       const r = entries[0].contentRect;
-      if (r.width > 0) setSize({ w: Math.round(r.width), h: Math.round(Math.max(320, Math.min(r.width * 0.62, 760))) });
+      if (r.width > 0) setSize((cur) => (Math.round(r.width) === cur.w ? cur : sizeOf(r.width)));
     });
     ro.observe(el);
     return () => ro.disconnect();
   }, []);
 
-  if (props.initialField && cache.current.size === 0) {
-    const f = props.initialField;
+  if (initialField && cache.current.size === 0) {
+    const f = initialField;
     cache.current.set(`${f.epoch.id}:${f.mode === "cumulative" ? "" : f.from.id}`, f);
   }
 
@@ -179,7 +190,7 @@ export function SitePlan(props: SitePlanProps) {
     fetch(`/api/v1/sites/${encodeURIComponent(slug)}/field?${q}`, { signal: ctl.signal, credentials: "same-origin" })
       .then(async (r) => {
         if (!r.ok) throw new Error(((await r.json().catch(() => null)) as { error?: { message?: string } } | null)?.error?.message ?? `HTTP ${r.status}`);
-        return (await r.json()) as StrainField;
+        return unpackField((await r.json()) as PackedField);
       })
       .then((f) => {
         if (cache.current.size > 200) cache.current.clear();
@@ -262,7 +273,7 @@ export function SitePlan(props: SitePlanProps) {
   // Glyph scale: the legend's reference strain (a nice number near the largest principal value) draws 0.8 × a typical element size.
   const glyphRefStrain = principalMax > 0 ? niceFloor(principalMax) || principalMax : 0;
   const scale = glyphScale(glyphRefStrain, typicalSizeM * 0.8);
-  const exag = exaggeration ?? defaultExaggeration(props.initialField, typicalSizeM);
+  const exag = exaggeration ?? defaultExaggeration(initialField, typicalSizeM);
 
   const upp = unitsPerPixel(view, size.w, size.h);
   // Quantise so that layers redraw only when the zoom changes noticeably.
@@ -345,7 +356,7 @@ export function SitePlan(props: SitePlanProps) {
 
   const hovered = hover ? shapes.find((s) => s.el.id === hover.id) : undefined;
   const hoveredValues = hovered ? valueById.get(hovered.el.id) : undefined;
-  const ready = !loading && field !== null;
+  const ready = mounted && !loading && field !== null;
   const epochTime = epochTimesMs[index];
 
   return (
@@ -399,7 +410,7 @@ export function SitePlan(props: SitePlanProps) {
           <button type="button" className="secondary small" onClick={() => setView(zoomView(view, 0.8, view.x + view.width / 2, view.y + view.height / 2, home))} aria-label="Zoom out">
             −
           </button>
-          <button type="button" className="secondary small" onClick={() => setView(home)}>
+          <button type="button" className="secondary small" onClick={() => setUserView(null)}>
             Reset view
           </button>
         </div>
@@ -457,10 +468,14 @@ export function SitePlan(props: SitePlanProps) {
               </pattern>
             </defs>
             <NorthArrow view={view} upp={upp} />
+            {mounted ? (
+              <>
             <ElementsLayer shapes={shapes} valueById={valueById} quantity={quantity} k={k} domainMax={domainMax} upp={uppQ} showMarkers={!showGlyphs} />
             {showGlyphs ? <GlyphLayer shapes={shapes} valueById={valueById} scale={scale} upp={uppQ} /> : null}
             <PointsLayer points={points} upp={uppQ} showLabels={showLabels} />
             {showVectors && field ? <VectorLayer field={field} pointByCode={pointByCode} exaggeration={exag} upp={uppQ} /> : null}
+              </>
+            ) : null}
           </svg>
           {hovered && hoveredValues ? (
             <Tooltip x={hover!.x} y={hover!.y} w={size.w} shape={hovered} fe={hoveredValues} quantity={quantity} unit={unit} k={k} />
@@ -502,6 +517,9 @@ function NorthArrow({ view, upp }: { view: ViewBox; upp: number }) {
   );
 }
 
+/** Number for SVG path data: millimetres are plenty for a plan in metres about a local origin. */
+const f3 = (v: number) => (Math.round(v * 1000) / 1000).toString();
+
 const ElementsLayer = memo(function ElementsLayer(p: {
   shapes: Shape[];
   valueById: Map<number, FieldElement>;
@@ -512,128 +530,142 @@ const ElementsLayer = memo(function ElementsLayer(p: {
   showMarkers: boolean;
 }) {
   const info = QUANTITY_INFO[p.quantity];
+  // One polygon (or line) per element for its colour, hover and click; the hatching of every
+  // contracting element is one path, so the drawing stays light on sites with a thousand elements.
+  let hatch = "";
+  const markers: React.ReactNode[] = [];
+  const items = p.shapes.map((s) => {
+    const fe = p.valueById.get(s.el.id);
+    const qv = fe ? quantityValue(fe, s.el.kind, p.quantity, p.k) : null;
+    const value = qv?.value ?? null;
+    const fill = colourForValue(value, p.domainMax, info.signed || qv?.axial === true);
+    const faded = qv?.significant === false;
+    const sense = value === null || (!info.signed && !qv?.axial) ? null : value > 0 ? "+" : value < 0 ? "−" : null;
+    const common = {
+      "data-element": s.el.id,
+      "data-sign": sense === "+" ? "extension" : sense === "−" ? "contraction" : "none",
+      "data-significant": qv?.significant === null || qv === null ? "unknown" : String(qv.significant),
+      "data-fill": fill,
+    };
+    if (s.kind === "polygon") {
+      if (sense === "−") hatch += "M" + s.pts.map((q) => `${f3(q.x)} ${f3(q.y)}`).join("L") + "Z";
+      const markerSize = Math.min(14 * p.upp, s.sizeM * 0.35);
+      if (p.showMarkers && sense && markerSize > 3 * p.upp)
+        markers.push(
+          <text key={s.el.id} x={s.c.x} y={s.c.y} fontSize={markerSize * 1.4} textAnchor="middle" dominantBaseline="central" fill={inkOn(fill)} fontWeight={700}>
+            {sense}
+          </text>,
+        );
+      return (
+        <polygon
+          key={s.el.id}
+          points={s.pts.map((q) => `${f3(q.x)},${f3(q.y)}`).join(" ")}
+          fill={fill}
+          fillOpacity={faded ? 0.38 : 1}
+          stroke="#4a5560"
+          strokeOpacity={faded ? 0.5 : 1}
+          strokeWidth={0.8}
+          vectorEffect="non-scaling-stroke"
+          {...common}
+          className={faded ? "el faded" : "el"}
+        />
+      );
+    }
+    return (
+      <g key={s.el.id} opacity={faded ? 0.45 : 1}>
+        <line x1={s.pts[0].x} y1={s.pts[0].y} x2={s.pts[1].x} y2={s.pts[1].y} stroke="#1f2a33" strokeWidth={9} vectorEffect="non-scaling-stroke" strokeLinecap="round" pointerEvents="none" />
+        <line
+          x1={s.pts[0].x}
+          y1={s.pts[0].y}
+          x2={s.pts[1].x}
+          y2={s.pts[1].y}
+          stroke={fill}
+          strokeWidth={6}
+          vectorEffect="non-scaling-stroke"
+          strokeLinecap="round"
+          strokeDasharray={sense === "−" ? "6 4" : undefined}
+          {...common}
+          className="el"
+        />
+      </g>
+    );
+  });
   return (
     <g className="elements">
-      {p.shapes.map((s) => {
-        const fe = p.valueById.get(s.el.id);
-        const qv = fe ? quantityValue(fe, s.el.kind, p.quantity, p.k) : null;
-        const value = qv?.value ?? null;
-        const fill = colourForValue(value, p.domainMax, info.signed || qv?.axial === true);
-        const faded = qv?.significant === false;
-        const sense = value === null || (!info.signed && !qv?.axial) ? null : value > 0 ? "+" : value < 0 ? "−" : null;
-        const common = {
-          "data-element": s.el.id,
-          "data-sign": sense === "+" ? "extension" : sense === "−" ? "contraction" : "none",
-          "data-significant": qv?.significant === null || qv === null ? "unknown" : String(qv.significant),
-          "data-fill": fill,
-        };
-        const pts = s.pts.map((q) => `${q.x},${q.y}`).join(" ");
-        const markerSize = Math.min(14 * p.upp, s.sizeM * 0.35);
-        return (
-          <g key={s.el.id} opacity={faded ? 0.38 : 1} className={faded ? "faded" : undefined}>
-            {s.kind === "polygon" ? (
-              <>
-                <polygon points={pts} fill={fill} stroke="#4a5560" strokeWidth={0.8} vectorEffect="non-scaling-stroke" {...common} className="el" />
-                {sense === "−" ? <polygon points={pts} fill="url(#hatch-contraction)" pointerEvents="none" /> : null}
-              </>
-            ) : (
-              <>
-                <line x1={s.pts[0].x} y1={s.pts[0].y} x2={s.pts[1].x} y2={s.pts[1].y} stroke="#1f2a33" strokeWidth={9} vectorEffect="non-scaling-stroke" strokeLinecap="round" pointerEvents="none" />
-                <line
-                  x1={s.pts[0].x}
-                  y1={s.pts[0].y}
-                  x2={s.pts[1].x}
-                  y2={s.pts[1].y}
-                  stroke={fill}
-                  strokeWidth={6}
-                  vectorEffect="non-scaling-stroke"
-                  strokeLinecap="round"
-                  strokeDasharray={sense === "−" ? "6 4" : undefined}
-                  {...common}
-                  className="el"
-                />
-              </>
-            )}
-            {p.showMarkers && sense && markerSize > 3 * p.upp ? (
-              <text x={s.c.x} y={s.c.y} fontSize={markerSize * 1.4} textAnchor="middle" dominantBaseline="central" fill={inkOn(fill)} pointerEvents="none" fontWeight={700}>
-                {sense}
-              </text>
-            ) : null}
-          </g>
-        );
-      })}
+      {items}
+      {hatch ? <path d={hatch} fill="url(#hatch-contraction)" pointerEvents="none" className="hatch" /> : null}
+      {markers.length ? <g pointerEvents="none">{markers}</g> : null}
     </g>
   );
 });
 
 const GlyphLayer = memo(function GlyphLayer(p: { shapes: Shape[]; valueById: Map<number, FieldElement>; scale: number; upp: number }) {
   if (!(p.scale > 0)) return null;
+  // Two paths in all: extension bars with outward heads, contraction bars with inward heads.
+  let ext = "";
+  let con = "";
+  for (const s of p.shapes) {
+    if (s.kind !== "polygon" || s.sizeM / p.upp < MIN_GLYPH_ELEMENT_PX) continue;
+    const fe = p.valueById.get(s.el.id);
+    if (!fe || fe.greenMax === null || fe.greenMin === null) continue;
+    const bars = principalGlyph({ cx: s.c.x, cy: s.c.y, azimuthMaxDeg: fe.azimuthMaxDeg, major: fe.greenMax, minor: fe.greenMin, scale: p.scale, headSize: 5 * p.upp });
+    for (const b of bars) {
+      if (b.sense === "none") continue;
+      let d = `M${f3(b.x1)} ${f3(b.y1)}L${f3(b.x2)} ${f3(b.y2)}`;
+      for (const h of b.heads) d += `M${f3(h[0][0])} ${f3(h[0][1])}L${f3(h[1][0])} ${f3(h[1][1])}L${f3(h[2][0])} ${f3(h[2][1])}`;
+      if (b.sense === "extension") ext += d;
+      else con += d;
+    }
+  }
   return (
-    <g className="glyphs" pointerEvents="none">
-      {p.shapes.map((s) => {
-        if (s.kind !== "polygon" || s.sizeM / p.upp < MIN_GLYPH_ELEMENT_PX) return null;
-        const fe = p.valueById.get(s.el.id);
-        if (!fe || fe.greenMax === null || fe.greenMin === null) return null;
-        const bars = principalGlyph({ cx: s.c.x, cy: s.c.y, azimuthMaxDeg: fe.azimuthMaxDeg, major: fe.greenMax, minor: fe.greenMin, scale: p.scale, headSize: 5 * p.upp });
-        return (
-          <g key={s.el.id}>
-            {bars.map((b, i) => (
-              <g key={i} stroke={b.sense === "extension" ? "#5a1e00" : "#0a2540"}>
-                <line x1={b.x1} y1={b.y1} x2={b.x2} y2={b.y2} strokeWidth={1.8} vectorEffect="non-scaling-stroke" />
-                {b.heads.map((h, j) => (
-                  <polyline key={j} points={h.map((q) => q.join(",")).join(" ")} fill="none" strokeWidth={1.8} vectorEffect="non-scaling-stroke" />
-                ))}
-              </g>
-            ))}
-          </g>
-        );
-      })}
+    <g className="glyphs" pointerEvents="none" fill="none" strokeWidth={1.8}>
+      {ext ? <path d={ext} stroke="#5a1e00" vectorEffect="non-scaling-stroke" data-glyphs="extension" /> : null}
+      {con ? <path d={con} stroke="#0a2540" vectorEffect="non-scaling-stroke" data-glyphs="contraction" /> : null}
     </g>
   );
 });
 
 const PointsLayer = memo(function PointsLayer(p: { points: PlanPointProp[]; upp: number; showLabels: boolean }) {
   const r = 3.2 * p.upp;
+  let dots = "";
+  let refs = "";
+  for (const pt of p.points) {
+    const x = pt.east;
+    const y = -pt.north;
+    if (pt.isReference) refs += `M${f3(x)} ${f3(y - 1.6 * r)}L${f3(x + 1.4 * r)} ${f3(y + r)}L${f3(x - 1.4 * r)} ${f3(y + r)}Z`;
+    else dots += `M${f3(x - r)} ${f3(y)}a${f3(r)} ${f3(r)} 0 1 0 ${f3(2 * r)} 0a${f3(r)} ${f3(r)} 0 1 0 ${f3(-2 * r)} 0`;
+  }
   return (
     <g className="points" pointerEvents="none">
-      {p.points.map((pt) => {
-        const x = pt.east;
-        const y = -pt.north;
-        return (
-          <g key={pt.code}>
-            {pt.isReference ? (
-              <path d={`M ${x} ${y - 1.6 * r} L ${x + 1.4 * r} ${y + r} L ${x - 1.4 * r} ${y + r} Z`} fill="#ffffff" stroke="#1f2a33" strokeWidth={1.4} vectorEffect="non-scaling-stroke" />
-            ) : (
-              <circle cx={x} cy={y} r={r} fill="#1f2a33" stroke="#ffffff" strokeWidth={1} vectorEffect="non-scaling-stroke" />
-            )}
-            {p.showLabels ? (
-              <text x={x + 1.6 * r} y={y - 1.6 * r} fontSize={11 * p.upp} fill="#1f2a33" stroke="#ffffff" strokeWidth={3 * p.upp} paintOrder="stroke">
-                {pt.code}
-              </text>
-            ) : null}
-          </g>
-        );
-      })}
+      <path d={dots} fill="#1f2a33" stroke="#ffffff" strokeWidth={1} vectorEffect="non-scaling-stroke" />
+      <path d={refs} fill="#ffffff" stroke="#1f2a33" strokeWidth={1.4} vectorEffect="non-scaling-stroke" />
+      {p.showLabels
+        ? p.points.map((pt) => (
+            <text key={pt.code} x={pt.east + 1.6 * r} y={-pt.north - 1.6 * r} fontSize={11 * p.upp} fill="#1f2a33" stroke="#ffffff" strokeWidth={3 * p.upp} paintOrder="stroke">
+              {pt.code}
+            </text>
+          ))
+        : null}
     </g>
   );
 });
 
 const VectorLayer = memo(function VectorLayer(p: { field: StrainField; pointByCode: Map<string, PlanPointProp>; exaggeration: number; upp: number }) {
+  let sig = "";
+  let not = "";
+  for (const d of p.field.points) {
+    const pt = p.pointByCode.get(d.code);
+    if (!pt) continue;
+    const a = displacementArrow(pt.east, -pt.north, d.dE, d.dN, p.exaggeration, 6 * p.upp);
+    if (!a) continue;
+    const path = `M${f3(a.shaft.x1)} ${f3(a.shaft.y1)}L${f3(a.shaft.x2)} ${f3(a.shaft.y2)}M${f3(a.head[0][0])} ${f3(a.head[0][1])}L${f3(a.head[1][0])} ${f3(a.head[1][1])}L${f3(a.head[2][0])} ${f3(a.head[2][1])}`;
+    if (d.significant === false) not += path;
+    else sig += path;
+  }
   return (
-    <g className="vectors" pointerEvents="none">
-      {p.field.points.map((d) => {
-        const pt = p.pointByCode.get(d.code);
-        if (!pt) return null;
-        const a = displacementArrow(pt.east, -pt.north, d.dE, d.dN, p.exaggeration, 6 * p.upp);
-        if (!a) return null;
-        const colour = d.significant === false ? "#7b8791" : "#7a1f5c";
-        return (
-          <g key={d.code} stroke={colour} opacity={d.significant === false ? 0.6 : 1}>
-            <line x1={a.shaft.x1} y1={a.shaft.y1} x2={a.shaft.x2} y2={a.shaft.y2} strokeWidth={1.6} vectorEffect="non-scaling-stroke" strokeDasharray={d.significant === false ? "3 3" : undefined} />
-            <polyline points={a.head.map((q) => q.join(",")).join(" ")} fill="none" strokeWidth={1.6} vectorEffect="non-scaling-stroke" />
-          </g>
-        );
-      })}
+    <g className="vectors" pointerEvents="none" fill="none" strokeWidth={1.6}>
+      {sig ? <path d={sig} stroke="#7a1f5c" vectorEffect="non-scaling-stroke" /> : null}
+      {not ? <path d={not} stroke="#7b8791" strokeDasharray="3 3" opacity={0.7} vectorEffect="non-scaling-stroke" /> : null}
     </g>
   );
 });

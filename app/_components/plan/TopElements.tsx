@@ -34,7 +34,7 @@ export function TopElements({ slug, elements, field, limit = 12 }: { slug: strin
             return (
               <tr key={fe.id}>
                 <td>
-                  <Link href={`/sites/${slug}/elements/${fe.id}`}>{el!.name}</Link>
+                  <Link prefetch={false} href={`/sites/${slug}/elements/${fe.id}`}>{el!.name}</Link>
                 </td>
                 <td>{el!.kind}</td>
                 <td className="num">{formatStrain(value, "ue", { signed: true })}</td>

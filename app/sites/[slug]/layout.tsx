@@ -1,14 +1,14 @@
 /** Site header on every site page: name, time zone, reference epoch, latest epoch, and the site's sections. */
 import Link from "next/link";
 import { requireSiteRole } from "@/app/_server/auth.ts";
-import { getSiteHeader } from "@/lib/server/dashboard/site.ts";
+import { siteHeaderOnce } from "./site-data.ts";
 import { describeZone, formatSiteTime } from "@/lib/plan/index.ts";
 import { roleAllows } from "@/lib/server/auth/permissions.ts";
 
 export default async function SiteLayout({ children, params }: { children: React.ReactNode; params: Promise<{ slug: string }> }) {
   const { slug } = await params;
   const { site, role } = await requireSiteRole(slug, "read");
-  const h = await getSiteHeader(site.id);
+  const h = await siteHeaderOnce(site.id);
   const base = `/sites/${encodeURIComponent(site.slug)}`;
   return (
     <>
@@ -28,11 +28,11 @@ export default async function SiteLayout({ children, params }: { children: React
           <dd>{h?.epochCount ?? 0}</dd>
         </dl>
         <nav aria-label="Site" className="site-nav no-print">
-          <Link href={base}>Plan</Link>
-          <Link href={`${base}/elements`}>Elements</Link>
-          <Link href={`${base}/alerts`}>Alerts</Link>
-          {roleAllows(role, "manage-points") ? <Link href={`${base}/setup`}>Set-up</Link> : null}
-          {roleAllows(role, "administer") ? <Link href={`${base}/settings`}>Settings</Link> : null}
+          <Link prefetch={false} href={base}>Plan</Link>
+          <Link prefetch={false} href={`${base}/elements`}>Elements</Link>
+          <Link prefetch={false} href={`${base}/alerts`}>Alerts</Link>
+          {roleAllows(role, "manage-points") ? <Link prefetch={false} href={`${base}/setup`}>Set-up</Link> : null}
+          {roleAllows(role, "administer") ? <Link prefetch={false} href={`${base}/settings`}>Settings</Link> : null}
         </nav>
       </div>
       {children}

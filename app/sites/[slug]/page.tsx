@@ -2,9 +2,10 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { requireSiteRole } from "@/app/_server/auth.ts";
-import { getPlanGeometry, getSiteHeader, listEpochs } from "@/lib/server/dashboard/site.ts";
+import { getPlanGeometry, listEpochs } from "@/lib/server/dashboard/site.ts";
+import { siteHeaderOnce } from "./site-data.ts";
 import { getStrainField } from "@/lib/server/dashboard/field.ts";
-import { isPlanQuantity, isStrainUnit } from "@/lib/plan/index.ts";
+import { isPlanQuantity, isStrainUnit, packField } from "@/lib/plan/index.ts";
 import { SitePlan } from "@/app/_components/plan/SitePlan.tsx";
 import { TopElements } from "@/app/_components/plan/TopElements.tsx";
 
@@ -18,10 +19,19 @@ export default async function SitePage({ params, searchParams }: { params: Promi
   const { slug } = await params;
   const sp = await searchParams;
   const { site } = await requireSiteRole(slug, "read");
-  const header = await getSiteHeader(site.id);
+  const header = await siteHeaderOnce(site.id);
   const refId = header?.reference?.id ?? null;
-  const [geometry, epochs] = await Promise.all([getPlanGeometry(site.id, refId), listEpochs(site.id)]);
-  const field = header?.latest ? await getStrainField(site.id, { epochId: header.latest.id }) : null;
+  const [geometry, epochs, field] = await Promise.all([
+    getPlanGeometry(site.id, refId),
+    listEpochs(site.id),
+    header?.latest ? getStrainField(site.id, { epochId: header.latest.id }) : Promise.resolve(null),
+  ]);
+  // SVG works in single precision: draw about a local origin (whole metres near the centroid) so
+  // grid coordinates of millions of metres keep millimetre detail; sent to 0.1 mm.
+  const n = Math.max(1, geometry.points.length);
+  const originE = Math.round(geometry.points.reduce((s, p) => s + p.east, 0) / n);
+  const originN = Math.round(geometry.points.reduce((s, p) => s + p.north, 0) / n);
+  const r4 = (v: number) => Math.round(v * 1e4) / 1e4;
   const q = typeof sp.quantity === "string" && isPlanQuantity(sp.quantity) ? sp.quantity : "greenMax";
   const unit = typeof sp.unit === "string" && isStrainUnit(sp.unit) ? sp.unit : "ue";
   return (
@@ -38,12 +48,12 @@ export default async function SitePage({ params, searchParams }: { params: Promi
         <SitePlan
           slug={site.slug}
           timeZone={site.timeZone}
-          points={geometry.points.map((p) => ({ code: p.code, east: p.east, north: p.north, isReference: p.isReference }))}
+          points={geometry.points.map((p) => ({ code: p.code, east: r4(p.east - originE), north: r4(p.north - originN), isReference: p.isReference }))}
           elements={geometry.elements.map((e) => ({ id: e.id, name: e.name, kind: e.kind, mode: e.mode, pointCodes: e.pointCodes }))}
           epochIds={epochs.ids}
           epochTimesMs={epochs.timesMs}
           referenceEpochId={refId}
-          initialField={field}
+          initialField={field ? packField(field) : null}
           initialQuantity={q}
           initialUnit={unit}
         />

@@ -59,7 +59,10 @@ function displacements(ref: Map<string, SurveyPoint>, cur: Map<string, SurveyPoi
 
 const fin = (v: number | null | undefined): number | null => (v === null || v === undefined || !Number.isFinite(v) ? null : v);
 
-export async function getStrainField(siteId: number, opts: { epochId: number; fromEpochId?: number | null; k?: number }): Promise<StrainField> {
+type FieldElementRow = { id: number; kind: string; mode: string; pointCodes: string[]; referenceEpochId: number | null };
+
+/** `preloaded.elements`: the site's enabled elements when the caller has them already (saves a query). */
+export async function getStrainField(siteId: number, opts: { epochId: number; fromEpochId?: number | null; k?: number }, preloaded: { elements?: FieldElementRow[] } = {}): Promise<StrainField> {
   const db = getDb();
   const k = opts.k ?? DEFAULT_K;
   const site = await db.site.findUnique({ where: { id: siteId }, select: { referenceEpochId: true } });
@@ -73,7 +76,7 @@ export async function getStrainField(siteId: number, opts: { epochId: number; fr
   if (!epoch) throw new AppError("not_found", `No epoch ${opts.epochId} on this site.`);
   if (!from) throw new AppError("not_found", `No epoch ${fromId} on this site.`);
   const mode = fromId === siteRef ? "cumulative" : "increment";
-  const elements = await db.element.findMany({ where: { siteId, disabledAt: null }, select: { id: true, kind: true, mode: true, pointCodes: true, referenceEpochId: true } });
+  const elements = preloaded.elements ?? (await db.element.findMany({ where: { siteId, disabledAt: null }, select: { id: true, kind: true, mode: true, pointCodes: true, referenceEpochId: true } }));
   const obs = await loadObservations([...new Set([epoch.id, from.id])]);
   const points = displacements(obs.get(from.id)!, obs.get(epoch.id)!);
 
