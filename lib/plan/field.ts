@@ -91,7 +91,7 @@ export function planDisplacement(
 
 /**
  * The field as sent over the wire: one array per column (names are not repeated per element) and
- * numbers kept to 6 significant digits (strain: well below any survey's resolution), so a site of a
+ * numbers kept to 6 significant digits, σ to 4 (strain: well below any survey's resolution), so a site of a
  * thousand elements costs tens of kilobytes rather than hundreds.
  */
 export interface PackedField {
@@ -120,6 +120,11 @@ const ELEMENT_KEYS = [
   "sigmaEngineering",
 ] as const satisfies readonly (keyof FieldElement)[];
 
+/** 4 significant digits (σ: its own uncertainty is far larger); null and non-finite stay null. */
+export function round4(v: number | null): number | null {
+  return v === null || !Number.isFinite(v) ? null : Number(v.toPrecision(4));
+}
+
 /** 6 significant digits; null and non-finite stay null. */
 export function round6(v: number | null): number | null {
   return v === null || !Number.isFinite(v) ? null : Number(v.toPrecision(6));
@@ -131,7 +136,7 @@ export function packField(f: StrainField): PackedField {
   f.elements.forEach((e, i) => {
     for (const k of ELEMENT_KEYS) {
       const v = e[k];
-      cols[k][i] = k === "id" || k === "status" ? v : round6(v as number | null);
+      cols[k][i] = k === "id" || k === "status" ? v : k.startsWith("sigma") ? round4(v as number | null) : round6(v as number | null);
     }
   });
   return {

@@ -1,6 +1,5 @@
 "use client";
 /** Step or play through epochs; compare cumulative (against the reference) or the increment between two epochs. */
-import { formatSiteTime } from "@/lib/plan/index.ts";
 
 /** Up to about 300 epochs to compare from: evenly spread over the history, plus the few before the shown one and the current choice. */
 function fromChoices(n: number, index: number, fromIndex: number): number[] {
@@ -12,7 +11,8 @@ function fromChoices(n: number, index: number, fromIndex: number): number[] {
 }
 
 export function EpochScrubber(p: {
-  timeZone: string;
+  /** Formats a UTC ms time on the site's clock. */
+  fmtTime: (ms: number) => string;
   epochIds: number[];
   epochTimesMs: number[];
   referenceEpochId: number | null;
@@ -48,18 +48,18 @@ export function EpochScrubber(p: {
           value={p.index}
           onChange={(e) => p.onIndex(Number(e.target.value))}
           aria-label="Epoch"
-          aria-valuetext={t !== undefined ? formatSiteTime(t, p.timeZone) : ""}
+          aria-valuetext={t !== undefined ? p.fmtTime(t) : ""}
           className="scrubber-range"
         />
         <output className="scrubber-time" aria-live="polite" data-testid="epoch-time">
-          {t !== undefined ? formatSiteTime(t, p.timeZone) : "–"} <span className="muted">({p.index + 1} of {p.epochIds.length})</span>
+          {t !== undefined ? p.fmtTime(t) : "–"} <span className="muted">({p.index + 1} of {p.epochIds.length})</span>
           {p.loading ? <span className="muted"> · loading</span> : null}
         </output>
       </div>
       <div className="scrubber-row">
         <label className="check">
           <input type="radio" name="compare" checked={p.compare === "cumulative"} onChange={() => p.onCompare("cumulative")} /> Cumulative since the reference epoch
-          {p.epochTimesMs[refIndex] !== undefined ? ` (${formatSiteTime(p.epochTimesMs[refIndex], p.timeZone)})` : ""}
+          {p.epochTimesMs[refIndex] !== undefined ? ` (${p.fmtTime(p.epochTimesMs[refIndex])})` : ""}
         </label>
         <label className="check">
           <input type="radio" name="compare" checked={p.compare === "increment"} onChange={() => p.onCompare("increment")} /> Increment since
@@ -68,12 +68,12 @@ export function EpochScrubber(p: {
           <select value={p.fromIndex} onChange={(e) => p.onFromIndex(Number(e.target.value))} aria-label="Compare from epoch">
             {fromChoices(p.epochIds.length, p.index, p.fromIndex).map((i) => (
               <option key={p.epochIds[i]} value={i}>
-                {formatSiteTime(p.epochTimesMs[i], p.timeZone)}
+                {p.fmtTime(p.epochTimesMs[i])}
               </option>
             ))}
           </select>
         ) : (
-          <span className="muted small">{p.epochTimesMs[p.fromIndex] !== undefined ? formatSiteTime(p.epochTimesMs[p.fromIndex], p.timeZone) : ""}</span>
+          <span className="muted small">{p.epochTimesMs[p.fromIndex] !== undefined ? p.fmtTime(p.epochTimesMs[p.fromIndex]) : ""}</span>
         )}
       </div>
     </div>

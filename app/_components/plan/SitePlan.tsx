@@ -51,11 +51,21 @@ export interface PlanElementProp {
   mode: string;
   pointCodes: string[];
 }
+/** An element as the page sends it: point indices into `points`; name only when it is not the codes joined by "-". */
+export interface PlanElementWire {
+  id: number;
+  n?: string;
+  k: string;
+  m: string;
+  p: number[];
+}
 export interface SitePlanProps {
   slug: string;
   timeZone: string;
   points: PlanPointProp[];
-  elements: PlanElementProp[];
+  elements: PlanElementWire[];
+  /** Preformatted times (key: UTC ms) for the first render, so the browser needs no time-zone data until the user scrubs. */
+  timeLabels?: Record<string, string>;
   epochIds: number[];
   epochTimesMs: number[];
   referenceEpochId: number | null;
@@ -106,7 +116,16 @@ function median(values: number[]): number {
 }
 
 export function SitePlan(props: SitePlanProps) {
-  const { slug, timeZone, points, elements, epochIds, epochTimesMs, referenceEpochId } = props;
+  const { slug, timeZone, points, epochIds, epochTimesMs, referenceEpochId, timeLabels } = props;
+  const elements = useMemo<PlanElementProp[]>(
+    () =>
+      props.elements.map((e) => {
+        const pointCodes = e.p.map((i) => points[i]?.code).filter((c): c is string => c !== undefined);
+        return { id: e.id, name: e.n ?? pointCodes.join("-"), kind: e.k, mode: e.m, pointCodes };
+      }),
+    [props.elements, points],
+  );
+  const fmtTime = useCallback((ms: number) => timeLabels?.[String(ms)] ?? formatSiteTime(ms, timeZone), [timeLabels, timeZone]);
   const router = useRouter();
   const svgRef = useRef<SVGSVGElement | null>(null);
   const [size, setSize] = useState({ w: 960, h: 600 });
@@ -417,12 +436,12 @@ export function SitePlan(props: SitePlanProps) {
       </div>
 
       <p className="print-only">
-        {info.label}, {field?.mode === "increment" ? `increment from ${formatSiteTime(field.from.timeMs, timeZone)}` : "cumulative since the reference epoch"}, at{" "}
-        {field ? formatSiteTime(field.epoch.timeMs, timeZone) : "–"} ({timeZone}).
+        {info.label}, {field?.mode === "increment" ? `increment from ${fmtTime(field.from.timeMs)}` : "cumulative since the reference epoch"}, at{" "}
+        {field ? fmtTime(field.epoch.timeMs) : "–"} ({timeZone}).
       </p>
       {epochIds.length > 0 ? (
         <EpochScrubber
-          timeZone={timeZone}
+          fmtTime={fmtTime}
           epochTimesMs={epochTimesMs}
           index={index}
           onIndex={(i) => {
@@ -453,7 +472,7 @@ export function SitePlan(props: SitePlanProps) {
             viewBox={`${view.x} ${view.y} ${view.width} ${view.height}`}
             preserveAspectRatio="xMidYMid meet"
             role="img"
-            aria-label={`Plan of ${points.length} points and ${shapes.length} elements, coloured by ${info.label}${epochTime !== undefined ? ` at ${formatSiteTime(epochTime, timeZone)}` : ""}. Use + and − to zoom, arrow keys to pan, 0 to reset.`}
+            aria-label={`Plan of ${points.length} points and ${shapes.length} elements, coloured by ${info.label}${epochTime !== undefined ? ` at ${fmtTime(epochTime)}` : ""}. Use + and − to zoom, arrow keys to pan, 0 to reset.`}
             tabIndex={0}
             onPointerDown={onPointerDown}
             onPointerMove={onPointerMove}
@@ -463,8 +482,9 @@ export function SitePlan(props: SitePlanProps) {
             className="plan-svg"
           >
             <defs>
-              <pattern id="hatch-contraction" patternUnits="userSpaceOnUse" width={8 * uppQ} height={8 * uppQ} patternTransform="rotate(45)">
-                <line x1={0} y1={0} x2={0} y2={8 * uppQ} stroke="#0d2b48" strokeOpacity={0.55} strokeWidth={1.6 * uppQ} />
+              {/* Two lines per 14 px tile: the same 7 px hatching at half the tiles (pattern painting dominates the plan's paint time). */}
+              <pattern id="hatch-contraction" patternUnits="userSpaceOnUse" width={14 * uppQ} height={14 * uppQ} patternTransform="rotate(45)">
+                <path d={`M${1 * uppQ} 0V${14 * uppQ}M${8 * uppQ} 0V${14 * uppQ}`} stroke="#0d2b48" strokeOpacity={0.55} strokeWidth={1.6 * uppQ} shapeRendering="crispEdges" />
               </pattern>
             </defs>
             <NorthArrow view={view} upp={upp} />
