@@ -4,6 +4,7 @@ import { requireSiteRole } from "@/app/_server/auth.ts";
 import { siteHeaderOnce } from "./site-data.ts";
 import { describeZone, formatSiteTime } from "@/lib/plan/index.ts";
 import { roleAllows } from "@/lib/server/auth/permissions.ts";
+import { LiveRefresh } from "@/app/_components/LiveRefresh.tsx";
 
 export default async function SiteLayout({ children, params }: { children: React.ReactNode; params: Promise<{ slug: string }> }) {
   const { slug } = await params;
@@ -31,9 +32,11 @@ export default async function SiteLayout({ children, params }: { children: React
           <Link prefetch={false} href={base}>Plan</Link>
           <Link prefetch={false} href={`${base}/elements`}>Elements</Link>
           <Link prefetch={false} href={`${base}/alerts`}>Alerts</Link>
+          <Link prefetch={false} href={`${base}/reports`}>Reports</Link>
           {roleAllows(role, "manage-points") ? <Link prefetch={false} href={`${base}/setup`}>Set-up</Link> : null}
           {roleAllows(role, "administer") ? <Link prefetch={false} href={`${base}/settings`}>Settings</Link> : null}
         </nav>
+        <LiveRefresh slug={site.slug} />
       </div>
       {children}
     </>
