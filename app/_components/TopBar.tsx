@@ -1,4 +1,6 @@
 /**
+// Links do not prefetch: a site team keeps one page open, and prefetches of the other sections
+// would compete with the plan's own data on every load.
  * The header on every signed-in page: product name, Sites, Alerts, Admin (administrators only),
  * the account's e-mail and Sign out (a POST form; works without JavaScript). Server component:
  * it reads the session itself. The root layout (app/layout.tsx) renders it on every page.
@@ -11,22 +13,22 @@ export async function TopBar() {
   const user = await currentUser();
   return (
     <header className="topbar">
-      <Link href="/" className="topbar-brand">
+      <Link prefetch={false} href="/" className="topbar-brand">
         Epochal
       </Link>
       <nav aria-label="Main" className="topbar-nav">
         {user ? (
           <>
-            <Link href="/sites">Sites</Link>
-            <Link href="/alerts">Alerts</Link>
-            {user.isAdmin ? <Link href="/admin">Admin</Link> : null}
+            <Link prefetch={false} href="/sites">Sites</Link>
+            <Link prefetch={false} href="/alerts">Alerts</Link>
+            {user.isAdmin ? <Link prefetch={false} href="/admin">Admin</Link> : null}
           </>
         ) : null}
       </nav>
       <div className="topbar-user">
         {user ? (
           <>
-            <Link href="/account" title="Your account">
+            <Link prefetch={false} href="/account" title="Your account">
               {user.email}
             </Link>
             <form action={signOutAction}>
@@ -36,7 +38,7 @@ export async function TopBar() {
             </form>
           </>
         ) : (
-          <Link href="/sign-in">Sign in</Link>
+          <Link prefetch={false} href="/sign-in">Sign in</Link>
         )}
       </div>
     </header>
