@@ -1,9 +1,9 @@
 /**
-// Links do not prefetch: a site team keeps one page open, and prefetches of the other sections
-// would compete with the plan's own data on every load.
  * The header on every signed-in page: product name, Sites, Alerts, Admin (administrators only),
  * the account's e-mail and Sign out (a POST form; works without JavaScript). Server component:
  * it reads the session itself. The root layout (app/layout.tsx) renders it on every page.
+ * Links do not prefetch: a site team keeps one page open, and prefetches of the other sections
+ * would compete with the plan's own data on every load.
  */
 import Link from "next/link";
 import { currentUser } from "@/app/_server/auth.ts";
