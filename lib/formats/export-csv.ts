@@ -13,6 +13,7 @@
  *   leading `'` so a spreadsheet does not run them as formulas (CSV injection); such codes do not
  *   round-trip unchanged, which is the price of opening exports safely in a spreadsheet.
  */
+import type { StoredValues } from "../strain/stored-values.ts";
 
 const FORMULA_START = /^[=+\-@\t\r]/;
 
@@ -75,7 +76,7 @@ export function observationsCsv(rows: readonly ExportObservation[]): string {
 // -------------------------------------------------------------------------------------------------
 // Computed strains
 
-export interface ExportResult {
+export interface ExportResult extends StoredValues {
   timeMs: number;
   element: string;
   kind: string;
@@ -83,18 +84,6 @@ export interface ExportResult {
   /** `ok`, `degenerate`, `missing-point`. */
   status: string;
   referenceTimeMs: number | null;
-  greenMax: number | null;
-  greenMin: number | null;
-  maxShear: number | null;
-  arealStrain: number | null;
-  rotationDeg: number | null;
-  azimuthMaxDeg: number | null;
-  engineering: number | null;
-  sigmaGreenMax: number | null;
-  sigmaGreenMin: number | null;
-  sigmaMaxShear: number | null;
-  sigmaArealStrain: number | null;
-  sigmaEngineering: number | null;
 }
 
 export const RESULT_CSV_COLUMNS = [

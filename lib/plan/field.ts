@@ -3,22 +3,11 @@
  * Strains dimensionless, angles in degrees, displacements in metres (E, N, H).
  */
 import { isSignificant, type PlanQuantity } from "./quantities.ts";
+import { STORED_VALUE_KEYS, type StoredValues } from "../strain/stored-values.ts";
 
-export interface FieldElement {
+export interface FieldElement extends StoredValues {
   id: number;
   status: string;
-  greenMax: number | null;
-  greenMin: number | null;
-  maxShear: number | null;
-  arealStrain: number | null;
-  rotationDeg: number | null;
-  azimuthMaxDeg: number | null;
-  engineering: number | null;
-  sigmaGreenMax: number | null;
-  sigmaGreenMin: number | null;
-  sigmaMaxShear: number | null;
-  sigmaArealStrain: number | null;
-  sigmaEngineering: number | null;
 }
 
 export interface FieldPoint {
@@ -103,22 +92,7 @@ export interface PackedField {
   points: { code: string[]; dE: number[]; dN: number[]; dH: number[]; significant: (boolean | null)[] };
 }
 
-const ELEMENT_KEYS = [
-  "id",
-  "status",
-  "greenMax",
-  "greenMin",
-  "maxShear",
-  "arealStrain",
-  "rotationDeg",
-  "azimuthMaxDeg",
-  "engineering",
-  "sigmaGreenMax",
-  "sigmaGreenMin",
-  "sigmaMaxShear",
-  "sigmaArealStrain",
-  "sigmaEngineering",
-] as const satisfies readonly (keyof FieldElement)[];
+const ELEMENT_KEYS = ["id", "status", ...STORED_VALUE_KEYS] as const satisfies readonly (keyof FieldElement)[];
 
 /** 4 significant digits (σ: its own uncertainty is far larger); null and non-finite stay null. */
 export function round4(v: number | null): number | null {

@@ -13,26 +13,13 @@ import "server-only";
 import { getDb } from "../db/client.ts";
 import { AppError } from "../errors.ts";
 import { computeElementStrain } from "../../strain/element.ts";
+import { storedValuesOf } from "../../strain/stored-values.ts";
 import type { ElementKind, ElementMode, SurveyPoint } from "../../strain/types.ts";
 import { planDisplacement, type FieldElement, type FieldPoint, type StrainField } from "../../plan/field.ts";
 import { DEFAULT_K } from "../../plan/quantities.ts";
 import { intList } from "./sql.ts";
 import { referenceEpochIdOf } from "./site.ts";
 
-const EMPTY: Omit<FieldElement, "id" | "status"> = {
-  greenMax: null,
-  greenMin: null,
-  maxShear: null,
-  arealStrain: null,
-  rotationDeg: null,
-  azimuthMaxDeg: null,
-  engineering: null,
-  sigmaGreenMax: null,
-  sigmaGreenMin: null,
-  sigmaMaxShear: null,
-  sigmaArealStrain: null,
-  sigmaEngineering: null,
-};
 
 type ObsRow = { epochId: number; code: string; east: number; north: number; height: number; sigmaEast: number; sigmaNorth: number; sigmaHeight: number };
 
@@ -99,25 +86,8 @@ export async function getStrainField(siteId: number, opts: { epochId: number; fr
     const ref = obs.get(from.id)!;
     const cur = obs.get(epoch.id)!;
     out = elements.map((el) => {
-      const r = computeElementStrain({ id: String(el.id), kind: el.kind as ElementKind, mode: el.mode as ElementMode, points: el.pointCodes }, ref, cur);
-      if (r.status !== "ok") return { id: el.id, status: r.status, ...EMPTY };
-      if ("engineering" in r) return { id: el.id, status: "ok", ...EMPTY, engineering: r.engineering, sigmaEngineering: r.sigma.engineering };
-      const planar = !("volumetricStrain" in r);
-      return {
-        id: el.id,
-        status: "ok",
-        ...EMPTY,
-        greenMax: r.greenMax,
-        greenMin: r.greenMin,
-        maxShear: r.maxShear,
-        arealStrain: planar && "arealStrain" in r ? r.arealStrain : null,
-        rotationDeg: planar ? r.rotationDeg : null,
-        azimuthMaxDeg: "azimuthMaxDeg" in r ? fin(r.azimuthMaxDeg) : null,
-        sigmaGreenMax: r.sigma.greenMax,
-        sigmaGreenMin: r.sigma.greenMin,
-        sigmaMaxShear: r.sigma.maxShear,
-        sigmaArealStrain: planar && "arealStrain" in r.sigma ? r.sigma.arealStrain : null,
-      };
+      const { status, values } = storedValuesOf(computeElementStrain({ id: String(el.id), kind: el.kind as ElementKind, mode: el.mode as ElementMode, points: el.pointCodes }, ref, cur));
+      return { id: el.id, status, ...values };
     });
   }
   return { mode, epoch: { id: epoch.id, timeMs: epoch.time.getTime() }, from: { id: from.id, timeMs: from.time.getTime() }, k, elements: out, points };

@@ -16,6 +16,7 @@
 import type { Prisma } from "../db/generated/client.ts";
 import type { Db } from "../db/client.ts";
 import { computeElementStrain, type ElementSpec } from "../../strain/element.ts";
+import { STORED_VALUE_KEYS, storedValuesOf, type StoredValueKey, type StoredValues } from "../../strain/stored-values.ts";
 import { computeTriangleBatch, createTriangleBatchOut, BATCH_OK } from "../../strain/batch.ts";
 import type { ElementKind, ElementMode, SurveyPoint } from "../../strain/types.ts";
 import { floatArray, intArray, textArray } from "../ingest/sql-arrays.ts";
@@ -23,40 +24,13 @@ import { currentDatabaseKey, type Sql } from "../ingest/pg-tx.ts";
 
 export type Tx = Prisma.TransactionClient | Db;
 
-interface ResultRow {
+interface ResultRow extends StoredValues {
   elementId: number;
   epochId: number;
   referenceEpochId: number;
   timeIso: string;
   status: string;
-  greenMax: number | null;
-  greenMin: number | null;
-  maxShear: number | null;
-  arealStrain: number | null;
-  rotationDeg: number | null;
-  azimuthMaxDeg: number | null;
-  engineering: number | null;
-  sigmaGreenMax: number | null;
-  sigmaGreenMin: number | null;
-  sigmaMaxShear: number | null;
-  sigmaArealStrain: number | null;
-  sigmaEngineering: number | null;
 }
-
-const EMPTY = {
-  greenMax: null,
-  greenMin: null,
-  maxShear: null,
-  arealStrain: null,
-  rotationDeg: null,
-  azimuthMaxDeg: null,
-  engineering: null,
-  sigmaGreenMax: null,
-  sigmaGreenMin: null,
-  sigmaMaxShear: null,
-  sigmaArealStrain: null,
-  sigmaEngineering: null,
-} as const;
 
 type EpochPoints = Map<string, SurveyPoint>;
 
@@ -88,28 +62,8 @@ const num = (v: number | null | undefined): number | null => (v === undefined ||
 /** One element at one epoch through the per-element engine, as a result row. */
 function elementRow(el: { id: number; kind: string; mode: string; pointCodes: string[] }, ref: EpochPoints, cur: EpochPoints, head: Pick<ResultRow, "elementId" | "epochId" | "referenceEpochId" | "timeIso">): ResultRow {
   const spec: ElementSpec = { id: String(el.id), kind: el.kind as ElementKind, mode: el.mode as ElementMode, points: el.pointCodes };
-  const r = computeElementStrain(spec, ref, cur);
-  if (r.status !== "ok") return { ...head, status: r.status, ...EMPTY };
-  if ("engineering" in r) return { ...head, status: "ok", ...EMPTY, engineering: r.engineering, sigmaEngineering: r.sigma.engineering };
-  if ("volumetricStrain" in r) {
-    // 3D groups: principal Green strains and shear; areal strain does not apply (volumetric strain is not stored here).
-    return { ...head, status: "ok", ...EMPTY, greenMax: r.greenMax, greenMin: r.greenMin, maxShear: r.maxShear, rotationDeg: r.rotationDeg, sigmaGreenMax: r.sigma.greenMax, sigmaGreenMin: r.sigma.greenMin, sigmaMaxShear: r.sigma.maxShear };
-  }
-  return {
-    ...head,
-    status: "ok",
-    ...EMPTY,
-    greenMax: r.greenMax,
-    greenMin: r.greenMin,
-    maxShear: r.maxShear,
-    arealStrain: r.arealStrain,
-    rotationDeg: r.rotationDeg,
-    azimuthMaxDeg: "azimuthMaxDeg" in r ? num(r.azimuthMaxDeg) : null,
-    sigmaGreenMax: r.sigma.greenMax,
-    sigmaGreenMin: r.sigma.greenMin,
-    sigmaMaxShear: r.sigma.maxShear,
-    sigmaArealStrain: r.sigma.arealStrain,
-  };
+  const { status, values } = storedValuesOf(computeElementStrain(spec, ref, cur));
+  return { ...head, status, ...values };
 }
 
 type ElementRow = { id: number; kind: string; mode: string; pointCodes: string[]; referenceEpochId: number | null };
@@ -189,7 +143,7 @@ class ResultColumns {
   readonly referenceEpochId: number[] = [];
   readonly timeIso: string[] = [];
   readonly status: string[] = [];
-  readonly values: Record<keyof typeof EMPTY, (number | null)[]> = {
+  readonly values: Record<StoredValueKey, (number | null)[]> = {
     greenMax: [], greenMin: [], maxShear: [], arealStrain: [], rotationDeg: [], azimuthMaxDeg: [], engineering: [],
     sigmaGreenMax: [], sigmaGreenMin: [], sigmaMaxShear: [], sigmaArealStrain: [], sigmaEngineering: [],
   };
@@ -205,7 +159,7 @@ class ResultColumns {
     for (const k of RESULT_KEYS) this.values[k].push(r[k]);
   }
 }
-const RESULT_KEYS = Object.keys(EMPTY) as (keyof typeof EMPTY)[];
+const RESULT_KEYS = STORED_VALUE_KEYS;
 
 /** An epoch to compute: its id, or (from the ingest service) its id, time and points as just stored. */
 export type EpochToCompute = number | { id: number; time: string | Date; points: EpochPoints };
@@ -339,7 +293,7 @@ const RESULT_CHUNK = 50_000;
 async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean): Promise<void> {
   for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
     const j = Math.min(rows.length, i + RESULT_CHUNK);
-    const col = (k: keyof typeof EMPTY): string => floatArray(rows.values[k].slice(i, j));
+    const col = (k: StoredValueKey): string => floatArray(rows.values[k].slice(i, j));
     await tx.query(
       `INSERT INTO "ElementResult" ("elementId", "epochId", "referenceEpochId", "time", "status",
          "greenMax", "greenMin", "maxShear", "arealStrain", "rotationDeg", "azimuthMaxDeg", "engineering",

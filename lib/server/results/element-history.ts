@@ -7,6 +7,7 @@
  * this is the transpose (one element, every epoch), so it reads the element's points across epochs in
  * one query and writes its rows with one INSERT … unnest per chunk. Observations are only read.
  */
+import { STORED_VALUE_KEYS, storedValuesOf, type StoredValueKey, type StoredValues } from "../../strain/stored-values.ts";
 import type { Prisma } from "../db/generated/client.ts";
 import type { Db } from "../db/client.ts";
 import { computeElementStrain, type ElementSpec } from "../../strain/element.ts";
@@ -44,48 +45,12 @@ type Row = {
   sigmaHeight: number;
 };
 
-const COLUMNS = [
-  "greenMax",
-  "greenMin",
-  "maxShear",
-  "arealStrain",
-  "rotationDeg",
-  "azimuthMaxDeg",
-  "engineering",
-  "sigmaGreenMax",
-  "sigmaGreenMin",
-  "sigmaMaxShear",
-  "sigmaArealStrain",
-  "sigmaEngineering",
-] as const;
-type Col = (typeof COLUMNS)[number];
-type Values = Record<Col, number | null>;
+const COLUMNS = STORED_VALUE_KEYS;
+type Col = StoredValueKey;
 
-const fin = (v: number | null | undefined): number | null => (v === undefined || v === null || !Number.isFinite(v) ? null : v);
-
-function valuesOf(spec: ElementSpec, ref: Map<string, SurveyPoint>, cur: Map<string, SurveyPoint>): { status: string; v: Values } {
-  const v: Values = Object.fromEntries(COLUMNS.map((c) => [c, null])) as Values;
-  const r = computeElementStrain(spec, ref, cur);
-  if (r.status !== "ok") return { status: r.status, v };
-  if ("engineering" in r) {
-    v.engineering = fin(r.engineering);
-    v.sigmaEngineering = fin(r.sigma.engineering);
-    return { status: "ok", v };
-  }
-  v.greenMax = fin(r.greenMax);
-  v.greenMin = fin(r.greenMin);
-  v.maxShear = fin(r.maxShear);
-  v.rotationDeg = fin(r.rotationDeg);
-  v.sigmaGreenMax = fin(r.sigma.greenMax);
-  v.sigmaGreenMin = fin(r.sigma.greenMin);
-  v.sigmaMaxShear = fin(r.sigma.maxShear);
-  if ("arealStrain" in r) {
-    // Plan and surface triangles, plan groups. Volume groups store no areal strain (as compute.ts).
-    v.arealStrain = fin(r.arealStrain);
-    v.sigmaArealStrain = fin(r.sigma.arealStrain);
-  }
-  if ("azimuthMaxDeg" in r) v.azimuthMaxDeg = fin(r.azimuthMaxDeg);
-  return { status: "ok", v };
+function valuesOf(spec: ElementSpec, ref: Map<string, SurveyPoint>, cur: Map<string, SurveyPoint>): { status: string; v: StoredValues } {
+  const { status, values } = storedValuesOf(computeElementStrain(spec, ref, cur));
+  return { status, v: values };
 }
 
 const lit = (xs: readonly (number | null)[]): string => "{" + xs.map((x) => (x === null ? "NULL" : String(x))).join(",") + "}";
