@@ -5,60 +5,34 @@
  * scrubber (step, play, compare two epochs). Receives plain data; fetches the field of other epochs
  * from GET /api/v1/sites/{slug}/field.
  */
-import { memo, useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState } from "react";
-import { useRouter } from "next/navigation";
+import { useCallback, useEffect, useMemo, useRef, useState } from "react";
 import {
-  clientToSvg,
-  colourForValue,
   convexHull,
-  displacementArrow,
-  fitViewBox,
   formatSiteTime,
-  formatStrain,
   glyphScale,
-  inkOn,
   niceCeilFine,
   niceFloor,
-  panView,
   polygonCentroid,
-  principalGlyph,
   quantityValue,
   QUANTITY_INFO,
   PLAN_QUANTITIES,
-  unitsPerPixel,
   zoomView,
   unpackField,
-  type FieldElement,
   type PackedField,
   type PlanQuantity,
   type StrainField,
   type StrainUnit,
-  type ViewBox,
 } from "@/lib/plan/index.ts";
 import { PlanLegend } from "./PlanLegend.tsx";
 import { EpochScrubber } from "./EpochScrubber.tsx";
+import { PlanTooltip } from "./PlanTooltip.tsx";
+import { ElementsLayer, GlyphLayer, NorthArrow, PointsLayer, VectorLayer } from "./planLayers.tsx";
+import { defaultExaggeration, EXAGGERATIONS, median, MIN_GLYPH_ELEMENT_PX, PLAY_STEP_MS, robustMax } from "./planScale.ts";
+import type { PlanElementProp, PlanElementWire, PlanPointProp, Shape } from "./planTypes.ts";
+import { usePlanView } from "./usePlanView.ts";
 
-export interface PlanPointProp {
-  code: string;
-  east: number;
-  north: number;
-  isReference: boolean;
-}
-export interface PlanElementProp {
-  id: number;
-  name: string;
-  kind: string;
-  mode: string;
-  pointCodes: string[];
-}
-/** An element as the page sends it: point indices into `points`; name only when it is not the codes joined by "-". */
-export interface PlanElementWire {
-  id: number;
-  n?: string;
-  k: string;
-  m: string;
-  p: number[];
-}
+export type { PlanElementProp, PlanElementWire, PlanPointProp } from "./planTypes.ts";
+
 export interface SitePlanProps {
   slug: string;
   timeZone: string;
@@ -75,46 +49,6 @@ export interface SitePlanProps {
   initialUnit?: StrainUnit;
 }
 
-type Shape = {
-  el: PlanElementProp;
-  kind: "polygon" | "line";
-  pts: { x: number; y: number }[];
-  c: { x: number; y: number };
-  sizeM: number;
-};
-
-const EXAGGERATIONS = [10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10000] as const;
-/** Glyphs are drawn only on elements at least this many screen pixels across (zoom in for the rest). */
-const MIN_GLYPH_ELEMENT_PX = 22;
-const PLAY_STEP_MS = 700;
-
-/** Robust maximum: the 98th percentile of magnitudes, so one wild element does not wash the plan out. */
-function robustMax(values: number[]): number {
-  const a = values.filter((v) => Number.isFinite(v)).map(Math.abs).sort((x, y) => x - y);
-  if (a.length === 0) return 0;
-  return a[Math.min(a.length - 1, Math.floor(a.length * 0.98))] || a[a.length - 1];
-}
-
-/**
- * Default exaggeration: the largest offered value at which the 95th percentile of the plan
- * displacements draws at most 1.2 typical element sizes.
- */
-function defaultExaggeration(field: StrainField | null, typicalSizeM: number): number {
-  if (!field || field.points.length === 0 || !(typicalSizeM > 0)) return 1000;
-  const d = field.points.map((p) => Math.hypot(p.dE, p.dN)).sort((a, b) => a - b);
-  const p95 = d[Math.min(d.length - 1, Math.floor(d.length * 0.95))];
-  if (!(p95 > 0)) return 1000;
-  let best: number = EXAGGERATIONS[0];
-  for (const x of EXAGGERATIONS) if (p95 * x <= 1.2 * typicalSizeM) best = x;
-  return best;
-}
-
-function median(values: number[]): number {
-  if (values.length === 0) return 0;
-  const a = [...values].sort((x, y) => x - y);
-  return a[Math.floor(a.length / 2)];
-}
-
 export function SitePlan(props: SitePlanProps) {
   const { slug, timeZone, points, epochIds, epochTimesMs, referenceEpochId, timeLabels } = props;
   const elements = useMemo<PlanElementProp[]>(
@@ -126,9 +60,6 @@ export function SitePlan(props: SitePlanProps) {
     [props.elements, points],
   );
   const fmtTime = useCallback((ms: number) => timeLabels?.[String(ms)] ?? formatSiteTime(ms, timeZone), [timeLabels, timeZone]);
-  const router = useRouter();
-  const svgRef = useRef<SVGSVGElement | null>(null);
-  const [size, setSize] = useState({ w: 960, h: 600 });
   const [quantity, setQuantity] = useState<PlanQuantity>(props.initialQuantity ?? "greenMax");
   const [unit, setUnit] = useState<StrainUnit>(props.initialUnit ?? "ue");
   const [showGlyphs, setShowGlyphs] = useState(true);
@@ -139,8 +70,6 @@ export function SitePlan(props: SitePlanProps) {
   const [lockedMax, setLockedMax] = useState<number | null>(null);
 
   const initialField = useMemo(() => (props.initialField ? unpackField(props.initialField) : null), [props.initialField]);
-  // The heavy SVG layers are drawn in the browser only: server HTML stays small and hydration quick.
-  const [mounted, setMounted] = useState(false);
   const lastIndex = epochIds.length - 1;
   const initialIndex = initialField ? Math.max(0, epochIds.indexOf(initialField.epoch.id)) : lastIndex;
   const [index, setIndex] = useState(initialIndex);
@@ -160,31 +89,7 @@ export function SitePlan(props: SitePlanProps) {
     const inElements = points.filter((p) => used.has(p.code));
     return inElements.length >= 2 ? inElements : points;
   }, [points, elements]);
-  const home = useMemo(() => fitViewBox(fitPoints, size.w / size.h), [fitPoints, size.w, size.h]);
-  // null: the fitted view (it follows the drawing's size); a box once the user zooms or pans.
-  const [userView, setUserView] = useState<ViewBox | null>(null);
-  const view = userView ?? home;
-  const homeRef = useRef(home);
-  homeRef.current = home;
-  const setView = useCallback((v: ViewBox | ((cur: ViewBox) => ViewBox)) => {
-    setUserView((cur) => (typeof v === "function" ? v(cur ?? homeRef.current) : v === homeRef.current ? null : v));
-  }, []);
-
-  // Measure the drawing area before the first paint and draw the layers once, at the right size.
-  useLayoutEffect(() => {
-    const el = svgRef.current?.parentElement;
-    if (!el) return;
-    const sizeOf = (w: number) => ({ w: Math.round(w), h: Math.round(Math.max(320, Math.min(w * 0.62, 760))) });
-    if (el.clientWidth > 0) setSize(sizeOf(el.clientWidth));
-    setMounted(true);
-    const ro = new ResizeObserver((entries) => {
-      const r = entries[0].contentRect;
-      if (r.width > 0) setSize((cur) => (Math.round(r.width) === cur.w ? cur : sizeOf(r.width)));
-    });
-    ro.observe(el);
-    return () => ro.disconnect();
-  }, []);
-
+  const { svgRef, size, mounted, home, view, setView, setUserView, upp, uppQ, onPointerDown, onPointerMove, onPointerUp, onKeyDown } = usePlanView({ slug, fitPoints, hover, setHover });
   if (initialField && cache.current.size === 0) {
     const f = initialField;
     cache.current.set(`${f.epoch.id}:${f.mode === "cumulative" ? "" : f.from.id}`, f);
@@ -294,84 +199,6 @@ export function SitePlan(props: SitePlanProps) {
   const scale = glyphScale(glyphRefStrain, typicalSizeM * 0.8);
   const exag = exaggeration ?? defaultExaggeration(initialField, typicalSizeM);
 
-  const upp = unitsPerPixel(view, size.w, size.h);
-  // Quantise so that layers redraw only when the zoom changes noticeably.
-  const uppQ = Math.pow(2, Math.round(Math.log2(upp) * 4) / 4);
-
-  const onWheel = useCallback(
-    (e: WheelEvent) => {
-      const svg = svgRef.current;
-      if (!svg) return;
-      e.preventDefault();
-      const rect = svg.getBoundingClientRect();
-      setView((v) => {
-        const a = clientToSvg(v, rect, e.clientX, e.clientY);
-        return zoomView(v, Math.pow(1.0015, -e.deltaY), a.x, a.y, homeRef.current);
-      });
-    },
-    [],
-  );
-  useEffect(() => {
-    const svg = svgRef.current;
-    if (!svg) return;
-    svg.addEventListener("wheel", onWheel, { passive: false });
-    return () => svg.removeEventListener("wheel", onWheel);
-  }, [onWheel]);
-
-  const drag = useRef<{ x: number; y: number; moved: boolean; view: ViewBox } | null>(null);
-  const onPointerDown = (e: React.PointerEvent<SVGSVGElement>) => {
-    if (e.button !== 0) return;
-    drag.current = { x: e.clientX, y: e.clientY, moved: false, view };
-  };
-  const onPointerMove = (e: React.PointerEvent<SVGSVGElement>) => {
-    const d = drag.current;
-    if (d) {
-      const dx = e.clientX - d.x;
-      const dy = e.clientY - d.y;
-      if (!d.moved && Math.hypot(dx, dy) > 4) {
-        d.moved = true;
-        (e.currentTarget as SVGSVGElement).setPointerCapture(e.pointerId);
-        setHover(null);
-      }
-      if (d.moved) setView(panView(d.view, -dx * upp, -dy * upp));
-      if (d.moved) return;
-    }
-    const target = e.target as Element;
-    const idAttr = target.getAttribute?.("data-element");
-    if (idAttr) {
-      const rect = e.currentTarget.getBoundingClientRect();
-      setHover({ id: Number(idAttr), x: e.clientX - rect.left, y: e.clientY - rect.top });
-    } else if (hover) setHover(null);
-  };
-  const onPointerUp = (e: React.PointerEvent<SVGSVGElement>) => {
-    const d = drag.current;
-    drag.current = null;
-    if (d && !d.moved) {
-      const idAttr = (e.target as Element).getAttribute?.("data-element");
-      if (idAttr) router.push(`/sites/${encodeURIComponent(slug)}/elements/${idAttr}`);
-    }
-  };
-  const onKeyDown = (e: React.KeyboardEvent<SVGSVGElement>) => {
-    const cx = view.x + view.width / 2;
-    const cy = view.y + view.height / 2;
-    const step = view.width / 10;
-    const actions: Record<string, () => ViewBox> = {
-      "+": () => zoomView(view, 1.25, cx, cy, home),
-      "=": () => zoomView(view, 1.25, cx, cy, home),
-      "-": () => zoomView(view, 0.8, cx, cy, home),
-      _: () => zoomView(view, 0.8, cx, cy, home),
-      ArrowLeft: () => panView(view, -step, 0),
-      ArrowRight: () => panView(view, step, 0),
-      ArrowUp: () => panView(view, 0, -step),
-      ArrowDown: () => panView(view, 0, step),
-      "0": () => home,
-    };
-    const a = actions[e.key];
-    if (a) {
-      e.preventDefault();
-      setView(a());
-    }
-  };
 
   const hovered = hover ? shapes.find((s) => s.el.id === hover.id) : undefined;
   const hoveredValues = hovered ? valueById.get(hovered.el.id) : undefined;
@@ -498,7 +325,7 @@ export function SitePlan(props: SitePlanProps) {
             ) : null}
           </svg>
           {hovered && hoveredValues ? (
-            <Tooltip x={hover!.x} y={hover!.y} w={size.w} shape={hovered} fe={hoveredValues} quantity={quantity} unit={unit} k={k} />
+            <PlanTooltip x={hover!.x} y={hover!.y} w={size.w} shape={hovered} fe={hoveredValues} quantity={quantity} unit={unit} k={k} />
           ) : null}
           {loading ? <div className="plan-status" role="status">Loading epoch…</div> : null}
           {loadError ? <div className="plan-status error" role="alert">Could not load this epoch: {loadError}</div> : null}
@@ -522,206 +349,3 @@ export function SitePlan(props: SitePlanProps) {
     </section>
   );
 }
-
-function NorthArrow({ view, upp }: { view: ViewBox; upp: number }) {
-  const x = view.x + view.width - 34 * upp;
-  const y = view.y + 40 * upp;
-  const s = upp;
-  return (
-    <g className="north" aria-hidden="true">
-      <path d={`M ${x} ${y - 22 * s} L ${x + 8 * s} ${y + 6 * s} L ${x} ${y} L ${x - 8 * s} ${y + 6 * s} Z`} fill="#1f2a33" />
-      <text x={x} y={y + 22 * s} fontSize={13 * s} textAnchor="middle" fill="#1f2a33">
-        N
-      </text>
-    </g>
-  );
-}
-
-/** Number for SVG path data: millimetres are plenty for a plan in metres about a local origin. */
-const f3 = (v: number) => (Math.round(v * 1000) / 1000).toString();
-
-const ElementsLayer = memo(function ElementsLayer(p: {
-  shapes: Shape[];
-  valueById: Map<number, FieldElement>;
-  quantity: PlanQuantity;
-  k: number;
-  domainMax: number;
-  upp: number;
-  showMarkers: boolean;
-}) {
-  const info = QUANTITY_INFO[p.quantity];
-  // One polygon (or line) per element for its colour, hover and click; the hatching of every
-  // contracting element is one path, so the drawing stays light on sites with a thousand elements.
-  let hatch = "";
-  const markers: React.ReactNode[] = [];
-  const items = p.shapes.map((s) => {
-    const fe = p.valueById.get(s.el.id);
-    const qv = fe ? quantityValue(fe, s.el.kind, p.quantity, p.k) : null;
-    const value = qv?.value ?? null;
-    const fill = colourForValue(value, p.domainMax, info.signed || qv?.axial === true);
-    const faded = qv?.significant === false;
-    const sense = value === null || (!info.signed && !qv?.axial) ? null : value > 0 ? "+" : value < 0 ? "−" : null;
-    const common = {
-      "data-element": s.el.id,
-      "data-sign": sense === "+" ? "extension" : sense === "−" ? "contraction" : "none",
-      "data-significant": qv?.significant === null || qv === null ? "unknown" : String(qv.significant),
-      "data-fill": fill,
-    };
-    if (s.kind === "polygon") {
-      if (sense === "−") hatch += "M" + s.pts.map((q) => `${f3(q.x)} ${f3(q.y)}`).join("L") + "Z";
-      const markerSize = Math.min(14 * p.upp, s.sizeM * 0.35);
-      if (p.showMarkers && sense && markerSize > 3 * p.upp)
-        markers.push(
-          <text key={s.el.id} x={s.c.x} y={s.c.y} fontSize={markerSize * 1.4} textAnchor="middle" dominantBaseline="central" fill={inkOn(fill)} fontWeight={700}>
-            {sense}
-          </text>,
-        );
-      return (
-        <polygon
-          key={s.el.id}
-          points={s.pts.map((q) => `${f3(q.x)},${f3(q.y)}`).join(" ")}
-          fill={fill}
-          fillOpacity={faded ? 0.38 : 1}
-          stroke="#4a5560"
-          strokeOpacity={faded ? 0.5 : 1}
-          strokeWidth={0.8}
-          vectorEffect="non-scaling-stroke"
-          {...common}
-          className={faded ? "el faded" : "el"}
-        />
-      );
-    }
-    return (
-      <g key={s.el.id} opacity={faded ? 0.45 : 1}>
-        <line x1={s.pts[0].x} y1={s.pts[0].y} x2={s.pts[1].x} y2={s.pts[1].y} stroke="#1f2a33" strokeWidth={9} vectorEffect="non-scaling-stroke" strokeLinecap="round" pointerEvents="none" />
-        <line
-          x1={s.pts[0].x}
-          y1={s.pts[0].y}
-          x2={s.pts[1].x}
-          y2={s.pts[1].y}
-          stroke={fill}
-          strokeWidth={6}
-          vectorEffect="non-scaling-stroke"
-          strokeLinecap="round"
-          strokeDasharray={sense === "−" ? "6 4" : undefined}
-          {...common}
-          className="el"
-        />
-      </g>
-    );
-  });
-  return (
-    <g className="elements">
-      {items}
-      {hatch ? <path d={hatch} fill="url(#hatch-contraction)" pointerEvents="none" className="hatch" /> : null}
-      {markers.length ? <g pointerEvents="none">{markers}</g> : null}
-    </g>
-  );
-});
-
-const GlyphLayer = memo(function GlyphLayer(p: { shapes: Shape[]; valueById: Map<number, FieldElement>; scale: number; upp: number }) {
-  if (!(p.scale > 0)) return null;
-  // Two paths in all: extension bars with outward heads, contraction bars with inward heads.
-  let ext = "";
-  let con = "";
-  for (const s of p.shapes) {
-    if (s.kind !== "polygon" || s.sizeM / p.upp < MIN_GLYPH_ELEMENT_PX) continue;
-    const fe = p.valueById.get(s.el.id);
-    if (!fe || fe.greenMax === null || fe.greenMin === null) continue;
-    const bars = principalGlyph({ cx: s.c.x, cy: s.c.y, azimuthMaxDeg: fe.azimuthMaxDeg, major: fe.greenMax, minor: fe.greenMin, scale: p.scale, headSize: 5 * p.upp });
-    for (const b of bars) {
-      if (b.sense === "none") continue;
-      let d = `M${f3(b.x1)} ${f3(b.y1)}L${f3(b.x2)} ${f3(b.y2)}`;
-      for (const h of b.heads) d += `M${f3(h[0][0])} ${f3(h[0][1])}L${f3(h[1][0])} ${f3(h[1][1])}L${f3(h[2][0])} ${f3(h[2][1])}`;
-      if (b.sense === "extension") ext += d;
-      else con += d;
-    }
-  }
-  return (
-    <g className="glyphs" pointerEvents="none" fill="none" strokeWidth={1.8}>
-      {ext ? <path d={ext} stroke="#5a1e00" vectorEffect="non-scaling-stroke" data-glyphs="extension" /> : null}
-      {con ? <path d={con} stroke="#0a2540" vectorEffect="non-scaling-stroke" data-glyphs="contraction" /> : null}
-    </g>
-  );
-});
-
-const PointsLayer = memo(function PointsLayer(p: { points: PlanPointProp[]; upp: number; showLabels: boolean }) {
-  const r = 3.2 * p.upp;
-  let dots = "";
-  let refs = "";
-  for (const pt of p.points) {
-    const x = pt.east;
-    const y = -pt.north;
-    if (pt.isReference) refs += `M${f3(x)} ${f3(y - 1.6 * r)}L${f3(x + 1.4 * r)} ${f3(y + r)}L${f3(x - 1.4 * r)} ${f3(y + r)}Z`;
-    else dots += `M${f3(x - r)} ${f3(y)}a${f3(r)} ${f3(r)} 0 1 0 ${f3(2 * r)} 0a${f3(r)} ${f3(r)} 0 1 0 ${f3(-2 * r)} 0`;
-  }
-  return (
-    <g className="points" pointerEvents="none">
-      <path d={dots} fill="#1f2a33" stroke="#ffffff" strokeWidth={1} vectorEffect="non-scaling-stroke" />
-      <path d={refs} fill="#ffffff" stroke="#1f2a33" strokeWidth={1.4} vectorEffect="non-scaling-stroke" />
-      {p.showLabels
-        ? p.points.map((pt) => (
-            <text key={pt.code} x={pt.east + 1.6 * r} y={-pt.north - 1.6 * r} fontSize={11 * p.upp} fill="#1f2a33" stroke="#ffffff" strokeWidth={3 * p.upp} paintOrder="stroke">
-              {pt.code}
-            </text>
-          ))
-        : null}
-    </g>
-  );
-});
-
-const VectorLayer = memo(function VectorLayer(p: { field: StrainField; pointByCode: Map<string, PlanPointProp>; exaggeration: number; upp: number }) {
-  let sig = "";
-  let not = "";
-  for (const d of p.field.points) {
-    const pt = p.pointByCode.get(d.code);
-    if (!pt) continue;
-    const a = displacementArrow(pt.east, -pt.north, d.dE, d.dN, p.exaggeration, 6 * p.upp);
-    if (!a) continue;
-    const path = `M${f3(a.shaft.x1)} ${f3(a.shaft.y1)}L${f3(a.shaft.x2)} ${f3(a.shaft.y2)}M${f3(a.head[0][0])} ${f3(a.head[0][1])}L${f3(a.head[1][0])} ${f3(a.head[1][1])}L${f3(a.head[2][0])} ${f3(a.head[2][1])}`;
-    if (d.significant === false) not += path;
-    else sig += path;
-  }
-  return (
-    <g className="vectors" pointerEvents="none" fill="none" strokeWidth={1.6}>
-      {sig ? <path d={sig} stroke="#7a1f5c" vectorEffect="non-scaling-stroke" /> : null}
-      {not ? <path d={not} stroke="#7b8791" strokeDasharray="3 3" opacity={0.7} vectorEffect="non-scaling-stroke" /> : null}
-    </g>
-  );
-});
-
-function Tooltip(p: { x: number; y: number; w: number; shape: Shape; fe: FieldElement; quantity: PlanQuantity; unit: StrainUnit; k: number }) {
-  const { fe, unit } = p;
-  const qv = quantityValue(fe, p.shape.el.kind, p.quantity, p.k);
-  const info = QUANTITY_INFO[p.quantity];
-  const fmt = (v: number | null, s: number | null) => (v === null ? "–" : `${formatStrain(v, unit, { signed: true })}${s !== null ? ` ± ${formatStrain(s, unit, { withUnit: false })}` : ""}`);
-  const left = p.x + 260 > p.w ? p.x - 250 : p.x + 14;
-  return (
-    <div className="plan-tooltip" style={{ left, top: p.y + 14 }} role="status">
-      <strong>{p.shape.el.name}</strong> <span className="muted">{p.shape.el.kind}, {p.shape.el.mode}</span>
-      {fe.status !== "ok" ? (
-        <div className="error">Not computed: {fe.status}</div>
-      ) : (
-        <dl>
-          <dt>{qv.axial ? "Axial strain (l − L)/L" : info.label}</dt>
-          <dd>
-            {info.kind === "angle" && !qv.axial ? (qv.value === null ? "–" : `${qv.value.toFixed(4)}°`) : fmt(qv.value, qv.sigma)}
-            {qv.significant === null ? "" : qv.significant ? " · significant" : " · not significant"}
-          </dd>
-          {!qv.axial ? (
-            <>
-              <dt>Principal (Green)</dt>
-              <dd>
-                {fmt(fe.greenMax, fe.sigmaGreenMax)} / {fmt(fe.greenMin, fe.sigmaGreenMin)}
-              </dd>
-              <dt>Major axis azimuth</dt>
-              <dd>{fe.azimuthMaxDeg === null ? "none (isotropic)" : `${fe.azimuthMaxDeg.toFixed(1)}° from grid north`}</dd>
-            </>
-          ) : null}
-        </dl>
-      )}
-      <div className="muted small">Click to open the element</div>
-    </div>
-  );
-}
-
