@@ -25,7 +25,8 @@ export async function elementTrend(db: Db, site: SiteRow, elementId: number, que
   const head = { element: { id: el.id, name: el.name, label: el.label }, quantity: query.quantity, timeZone: site.timeZone, caution: TREND_CAUTION };
   if (refId === null) return { ...head, window: null, trend: { status: "insufficient-data", n: 0, message: "no epochs yet", caution: TREND_CAUTION }, levels: [], crossings: [], inverseVelocity: null };
 
-  const last = await db.elementResult.findFirst({ where: { elementId: el.id, referenceEpochId: refId, status: "ok", epoch: { isCurrent: true } }, orderBy: { time: "desc" }, select: { time: true } });
+  const superseded = (await db.epoch.findMany({ where: { siteId: site.id, isCurrent: false }, select: { id: true } })).map((e) => e.id);
+  const last = await db.elementResult.findFirst({ where: { elementId: el.id, referenceEpochId: refId, status: "ok", epochId: { notIn: superseded } }, orderBy: { time: "desc" }, select: { time: true } });
   if (!last) return { ...head, window: null, trend: { status: "insufficient-data", n: 0, message: "no computed results yet", caution: TREND_CAUTION }, levels: [], crossings: [], inverseVelocity: null };
   const to = last.time;
   const from = new Date(to.getTime() - query.window);

@@ -25,6 +25,8 @@ import { recordAlertMails } from "../mail/outgoing.ts";
 import type { AlertMailFacts } from "../mail/compose.ts";
 import { mailConfigFromEnv, type MailConfig } from "../mail/config.ts";
 import { enqueueMails, scheduleDigest, startMailWorker } from "../mail/queue.ts";
+import { pgQuery } from "../ingest/pg-tx.ts";
+import { floatArray, intArray, textArray } from "../ingest/sql-arrays.ts";
 
 /** Advisory lock class of alert evaluation (the second key is the site id). */
 export const ALERT_LOCK_CLASS = 727_001;
@@ -61,6 +63,9 @@ function responseFor(rule: { responseReview: string; responseAlert: string; resp
 
 export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly number[], opts: EvaluateOptions): Promise<EvaluationReport> {
   const k = opts.k ?? DEFAULT_SIGNIFICANCE_K;
+  // Most epochs of most sites meet no enabled rule: answer that without opening a transaction.
+  const anyRule = await pgQuery<{ one: number }>(`SELECT 1 AS one FROM "TriggerRule" WHERE "siteId" = $1 AND enabled LIMIT 1`, [siteId]);
+  if (anyRule.length === 0 || epochIds.length === 0) return { transitions: [], queuedMailIds: [], digestItems: 0 };
   return db.$transaction(
     async (tx) => {
       await tx.$executeRaw`SELECT pg_advisory_xact_lock(${ALERT_LOCK_CLASS}::int, ${siteId}::int)`;
@@ -83,21 +88,33 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
       const siteRef = await siteReferenceEpochId(tx, siteId);
       const refOf = (elementId: number): number | null => elements.get(elementId)?.referenceEpochId ?? siteRef;
 
-      const rows = await tx.elementResult.findMany({ where: { elementId: { in: [...elements.keys()] }, epochId: { in: epochs.map((e) => e.id) } } });
+      // Results are read through the plain pg pool (committed rows of committed epochs; this
+      // transaction never writes them), by the full key, in two statements for all rules and elements.
+      const refs = [...elements.keys()].map((id) => ({ id, ref: refOf(id) })).filter((p): p is { id: number; ref: number } => p.ref !== null);
+      const rows = await pgQuery<ElementResult>(
+        `SELECT r.* FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
+           CROSS JOIN unnest($3::int[], $4::timestamptz[]) AS ep(id, t)
+           JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."time" = ep.t AND r."epochId" = ep.id`,
+        [intArray(refs.map((p) => p.id)), intArray(refs.map((p) => p.ref)), intArray(epochs.map((e) => e.id)), textArray(epochs.map((e) => e.time.toISOString()))],
+      );
       const rowAt = new Map<string, ElementResult>();
-      for (const r of rows) if (r.referenceEpochId === refOf(r.elementId)) rowAt.set(`${r.elementId}:${r.epochId}`, r);
+      for (const r of rows) rowAt.set(`${r.elementId}:${r.epochId}`, r);
 
-      // Rates: each element's last result before the first new epoch.
+      // Rates: each element's last usable result (current revision) before the first new epoch.
       const rateElements = new Set(rules.filter((r) => isRuleQuantity(r.quantity) && parseQuantity(r.quantity).isRate).flatMap((r) => r.elementIds));
       const prevRow = new Map<number, ElementResult>();
-      for (const elementId of rateElements) {
-        const ref = refOf(elementId);
-        if (!elements.has(elementId) || ref === null) continue;
-        const p = await tx.elementResult.findFirst({
-          where: { elementId, referenceEpochId: ref, time: { lt: epochs[0].time }, status: "ok", epoch: { isCurrent: true } },
-          orderBy: { time: "desc" },
-        });
-        if (p) prevRow.set(elementId, p);
+      const rateRefs = refs.filter((p) => rateElements.has(p.id));
+      if (rateRefs.length > 0) {
+        const prev = await pgQuery<ElementResult>(
+          `SELECT p.* FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
+             CROSS JOIN LATERAL (
+               SELECT r.* FROM "ElementResult" r
+                WHERE r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."time" < $3 AND r.status = 'ok'
+                  AND r."epochId" NOT IN (SELECT e.id FROM "Epoch" e WHERE e."siteId" = $4 AND NOT e."isCurrent")
+                ORDER BY r."time" DESC, r."epochId" DESC LIMIT 1) p`,
+          [intArray(rateRefs.map((p) => p.id)), intArray(rateRefs.map((p) => p.ref)), epochs[0].time.toISOString(), siteId],
+        );
+        for (const p of prev) prevRow.set(p.elementId, p);
       }
 
       const recipients = await tx.mailRecipient.findMany({ where: { siteId } });
@@ -108,6 +125,8 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
         (await tx.epoch.findMany({ where: { id: { in: openAlerts.map((a) => a.lastEpochId) } }, select: { id: true, time: true } })).map((e) => [e.id, e.time.getTime()]),
       );
 
+      // Alerts whose only change is the latest value ("stay"): one UPDATE for all of them at the end.
+      const stays: { id: number; lastEpochId: number; value: number; sigma: number | null }[] = [];
       for (const rule of rules) {
         if (!isRuleQuantity(rule.quantity)) continue;
         const spec: RuleSpec = {
@@ -125,7 +144,7 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
           let state = stateOf(alert);
           const p = prevRow.get(elementId);
           let prev: QuantitySample | null = p ? sampleOf(p, base) : null;
-          let dirty: Prisma.AlertUpdateInput | null = null;
+          let dirty: { lastEpochId: number; value: number; sigma: number | null } | null = null;
 
           for (const ep of epochs) {
             if (ep.time.getTime() <= watermark) continue;
@@ -217,8 +236,18 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
             state = nextState(state, t);
             if (state.status === "none") alert = null;
           }
-          if (dirty && alert) await tx.alert.update({ where: { id: alert.id }, data: dirty });
+          if (dirty && alert) stays.push({ id: alert.id, ...dirty });
         }
+      }
+      if (stays.length > 0) {
+        await tx.$executeRawUnsafe(
+          `UPDATE "Alert" a SET "lastEpochId" = u.e, value = u.v, sigma = u.s
+             FROM unnest($1::int[], $2::int[], $3::float8[], $4::float8[]) AS u(id, e, v, s) WHERE a.id = u.id`,
+          intArray(stays.map((x) => x.id)),
+          intArray(stays.map((x) => x.lastEpochId)),
+          floatArray(stays.map((x) => x.value)),
+          floatArray(stays.map((x) => x.sigma)),
+        );
       }
       return report;
     },

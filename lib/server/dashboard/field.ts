@@ -76,7 +76,8 @@ export async function getStrainField(siteId: number, opts: { epochId: number; fr
               r."azimuthMaxDeg", r.engineering, r."sigmaGreenMax", r."sigmaGreenMin", r."sigmaMaxShear", r."sigmaArealStrain",
               r."sigmaEngineering"
          FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
-         JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."epochId" = $3`,
+         JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid
+          AND r."time" = (SELECT e."time" FROM "Epoch" e WHERE e.id = $3) AND r."epochId" = $3`,
       intList(ids),
       intList(refs),
       epoch.id,

@@ -83,7 +83,8 @@ async function largestGreenMax(siteId: number, epochId: number, siteRef: number 
   const rows = await db.$queryRawUnsafe<{ elementId: number; greenMax: number; sigma: number | null }[]>(
     `SELECT r."elementId", r."greenMax", r."sigmaGreenMax" AS sigma
        FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
-       JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."epochId" = $3
+       JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid
+        AND r."time" = (SELECT e."time" FROM "Epoch" e WHERE e.id = $3) AND r."epochId" = $3
       WHERE r."greenMax" IS NOT NULL ORDER BY r."greenMax" DESC LIMIT 1`,
     intList(pairs.map((p) => p.id)),
     intList(pairs.map((p) => p.ref)),

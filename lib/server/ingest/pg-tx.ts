@@ -66,6 +66,11 @@ export async function withPgTransaction<T>(fn: (sql: Sql) => Promise<T>, opts: {
   }
 }
 
+/** One statement outside any transaction, on the same pool (reads of committed rows on hot paths). */
+export async function pgQuery<R>(text: string, values?: readonly unknown[]): Promise<R[]> {
+  return (await pool(databaseUrl()).query(text, values as unknown[] | undefined)).rows as R[];
+}
+
 /** Closes the pools of this process (tests, shutdown). */
 export async function closeIngestPools(): Promise<void> {
   const h = globalThis as Holder;

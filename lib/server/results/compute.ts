@@ -301,8 +301,8 @@ async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean): P
        SELECT * FROM unnest($1::int[], $2::int[], $3::int[], $4::timestamptz[], $5::text[],
          $6::float8[], $7::float8[], $8::float8[], $9::float8[], $10::float8[], $11::float8[], $12::float8[],
          $13::float8[], $14::float8[], $15::float8[], $16::float8[], $17::float8[])
-       ${fresh ? "" : `ON CONFLICT ("elementId", "referenceEpochId", "epochId") DO UPDATE SET
-         "time" = EXCLUDED."time", "status" = EXCLUDED."status", "greenMax" = EXCLUDED."greenMax", "greenMin" = EXCLUDED."greenMin",
+       ${fresh ? "" : `ON CONFLICT ("elementId", "referenceEpochId", "time", "epochId") DO UPDATE SET
+         "status" = EXCLUDED."status", "greenMax" = EXCLUDED."greenMax", "greenMin" = EXCLUDED."greenMin",
          "maxShear" = EXCLUDED."maxShear", "arealStrain" = EXCLUDED."arealStrain", "rotationDeg" = EXCLUDED."rotationDeg",
          "azimuthMaxDeg" = EXCLUDED."azimuthMaxDeg", "engineering" = EXCLUDED."engineering",
          "sigmaGreenMax" = EXCLUDED."sigmaGreenMax", "sigmaGreenMin" = EXCLUDED."sigmaGreenMin", "sigmaMaxShear" = EXCLUDED."sigmaMaxShear",

@@ -102,8 +102,8 @@ export async function computeElementHistory(tx: Tx, el: HistoryElement, referenc
       `INSERT INTO "ElementResult" ("elementId", "epochId", "referenceEpochId", "time", "status", ${COLUMNS.map((c) => `"${c}"`).join(", ")})
        SELECT $1::int, u.* FROM unnest($2::int[], $3::int[], $4::timestamptz[], $5::text[], ${COLUMNS.map((_, k) => `$${k + 6}::float8[]`).join(", ")})
          AS u("epochId", "referenceEpochId", "time", "status", ${COLUMNS.map((c) => `"${c}"`).join(", ")})
-       ON CONFLICT ("elementId", "referenceEpochId", "epochId") DO UPDATE SET
-         "time" = EXCLUDED."time", "status" = EXCLUDED."status", ${COLUMNS.map((c) => `"${c}" = EXCLUDED."${c}"`).join(", ")}`,
+       ON CONFLICT ("elementId", "referenceEpochId", "time", "epochId") DO UPDATE SET
+         "status" = EXCLUDED."status", ${COLUMNS.map((c) => `"${c}" = EXCLUDED."${c}"`).join(", ")}`,
       el.id,
       lit(part.map((e) => e.id)),
       lit(part.map(() => referenceEpochId)),

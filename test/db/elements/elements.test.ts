@@ -91,7 +91,7 @@ describe("POST /api/v1/sites/{slug}/elements/preview-triangulation", () => {
     const db = getDb();
     const count = async (): Promise<number[]> => [
       await db.element.count({ where: { siteId: site.id } }),
-      await db.elementResult.count({ where: { element: { siteId: site.id } } }),
+      await db.elementResult.count({ where: { elementId: { in: (await db.element.findMany({ where: { siteId: site.id }, select: { id: true } })).map((e) => e.id) } } }),
       await db.auditEntry.count({ where: { siteId: site.id } }),
     ];
     const before = await count();

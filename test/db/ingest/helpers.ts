@@ -67,7 +67,7 @@ export async function counts(siteId: number): Promise<{ epochs: number; observat
     db.observation.count({ where: { epoch: { siteId } } }),
     db.point.count({ where: { siteId } }),
     db.auditEntry.count({ where: { siteId } }),
-    db.elementResult.count({ where: { element: { siteId } } }),
+    db.element.findMany({ where: { siteId }, select: { id: true } }).then((els) => db.elementResult.count({ where: { elementId: { in: els.map((x) => x.id) } } })),
   ]);
   return { epochs: e, observations: o, points: p, audits: a, results: r };
 }

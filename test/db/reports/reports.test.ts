@@ -179,7 +179,8 @@ describe("GET /api/v1/sites/{slug}/export/{file}", () => {
     expect(head).toContain("green_max_microstrain");
     expect(head).toContain("sigma_green_max_microstrain");
     const rows = records.slice(1).map((r) => Object.fromEntries(head.map((h, i) => [h, r.fields[i]?.value ?? ""])));
-    const stored = await getDb().elementResult.count({ where: { element: { siteId: fx.site.id, disabledAt: null } } });
+    const enabled = await getDb().element.findMany({ where: { siteId: fx.site.id, disabledAt: null }, select: { id: true } });
+    const stored = await getDb().elementResult.count({ where: { elementId: { in: enabled.map((x) => x.id) } } });
     expect(rows.length).toBe(stored);
     const e = await getDb().element.findUniqueOrThrow({ where: { id: fx.triangleIds[0] } });
     const last = await getDb().elementResult.findFirstOrThrow({ where: { elementId: e.id }, orderBy: { time: "desc" } });
