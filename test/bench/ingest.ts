@@ -231,6 +231,20 @@ async function main(): Promise<void> {
       ],
     });
     const elementCount = tri.triangles.length + 100;
+    // Trigger rules as a site would have them, so "evaluated" is real work: every triangle's greenMax
+    // and its rate, every baseline's strain. Levels sit above the survey noise of this data (as a
+    // site's engineer would set them), so each epoch runs the state machine for every element and
+    // stores few transitions; the open alerts that do occur take the batched "stay" update.
+    const liveEls = await db.element.findMany({ where: { siteId: liveSite.id }, select: { id: true, kind: true } });
+    const triIds = liveEls.filter((e) => e.kind === "triangle").map((e) => e.id);
+    const baseIds = liveEls.filter((e) => e.kind === "baseline").map((e) => e.id);
+    await db.triggerRule.createMany({
+      data: [
+        { siteId: liveSite.id, name: "plan stretch", quantity: "greenMax", elementIds: triIds, reviewLevel: 1e-3, alertLevel: 2e-3, limitLevel: 4e-3, hysteresis: 1e-4 },
+        { siteId: liveSite.id, name: "stretch rate", quantity: "greenMax.ratePerDay", elementIds: triIds, reviewLevel: 0.5, alertLevel: 1, limitLevel: 2, hysteresis: 0.05 },
+        { siteId: liveSite.id, name: "baselines", quantity: "engineering", elementIds: baseIds, reviewLevel: 1e-3, alertLevel: 2e-3, limitLevel: 4e-3, hysteresis: 1e-4 },
+      ],
+    });
     const secret = newSecret("ept");
     await db.apiToken.create({ data: { siteId: liveSite.id, scope: "ingest", tokenHash: hashSecret(secret), prefix: secret.slice(0, 10) } });
     const liveCsv = (k: number): string =>
@@ -271,6 +285,8 @@ async function main(): Promise<void> {
     }
     if (mode !== "http") {
       const route = await import("../../app/api/v1/sites/[slug]/epochs/route.ts");
+      // The same after-commit work as the server: alert evaluation (and its mail queue).
+      (await import("../../lib/server/alerts/register.ts")).registerAlerting();
       post = async (body) => {
         const r = await route.POST(new Request("http://localhost/api/v1/sites/bench-live/epochs", { method: "POST", headers: { "content-type": "text/csv", authorization: `Bearer ${secret}` }, body }), { params: Promise.resolve({ slug: "bench-live" }) });
         await r.arrayBuffer();
@@ -294,6 +310,8 @@ async function main(): Promise<void> {
     const rows = await db.elementResult.count({ where: { elementId: { in: (await db.element.findMany({ where: { siteId: liveSite.id }, select: { id: true } })).map((e) => e.id) } } });
     if (rows !== elementCount * (3 + livePosts)) throw new Error(`expected ${elementCount * (3 + livePosts)} result rows, found ${rows}`);
     times.sort((a, b) => a - b);
+    out.liveAlerts = await db.alert.count({ where: { siteId: liveSite.id } });
+    out.liveAlertEvents = await db.alertEvent.count({ where: { alert: { siteId: liveSite.id } } });
     out.liveMode = mode;
     out.liveElements = elementCount;
     out.livePosts = livePosts;
@@ -306,6 +324,7 @@ async function main(): Promise<void> {
       server.kill("SIGTERM");
       await new Promise((r) => setTimeout(r, 300));
     }
+    await (await import("../../lib/server/mail/queue.ts")).stopMailWorker();
     await closeDb();
     await closeIngestPools();
     const a = new pg.Client({ connectionString: withDatabase(target.url, "postgres") });
@@ -321,7 +340,7 @@ async function main(): Promise<void> {
     if (backfillObservationsPerS !== undefined)
       notes.backfill = `scale ${out.scale}: ${Number(out.backfillObservations).toLocaleString("en-GB")} observations per side, ingest ${Number(backfillObservationsPerS).toLocaleString("en-GB")}/s vs COPY ${Number(copyObservationsPerS).toLocaleString("en-GB")}/s (A-B-B-A)`;
     if (liveEpochP95Ms !== undefined)
-      notes.liveEpoch = `${LIVE_POINTS} points, ${out.liveElements} elements, ${out.livePosts} posts, ${out.liveMode === "http" ? "through next start over HTTP (stored, results, committed, alerts evaluated)" : "route handler in-process (no HTTP server; alerting listener not registered)"}`;
+      notes.liveEpoch = `${LIVE_POINTS} points, ${out.liveElements} elements, ${out.livePosts} posts, ${out.liveMode === "http" ? `through next start over HTTP (stored, results, committed, 3 trigger rules over every element evaluated; ${out.liveAlerts} alerts, ${out.liveAlertEvents} events)` : `route handler in-process (no HTTP server; 3 trigger rules evaluated after commit; ${out.liveAlerts} alerts, ${out.liveAlertEvents} events)`}`;
     console.log(JSON.stringify({ backfillObservationsPerS, copyObservationsPerS, backfillRatioToCopy, liveEpochP50Ms, liveEpochP95Ms, ...rest, notes }));
   }
 }

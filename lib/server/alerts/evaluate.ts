@@ -16,17 +16,16 @@
  * still recorded but no longer mailed (neither immediately nor in digests).
  */
 import { getDb, type Db } from "../db/client.ts";
-import type { Alert, ElementResult, Prisma } from "../db/generated/client.ts";
-import { siteReferenceEpochId } from "../results/compute.ts";
+import type { Alert, ElementResult, Prisma, TriggerRule } from "../db/generated/client.ts";
 import { evaluateTransition, nextState, type AlertState, type Transition } from "../../triggers/evaluate.ts";
 import { comparedValueOf, DEFAULT_SIGNIFICANCE_K, type ComparedValue, type QuantitySample } from "../../triggers/quantities.ts";
-import { higherLevel, isRuleQuantity, isTriggerLevel, parseQuantity, type BaseQuantity, type RuleSpec, type TriggerLevel } from "../../triggers/rule.ts";
+import { higherLevel, isRuleQuantity, isTriggerLevel, parseQuantity, type BaseQuantity, type RuleQuantity, type RuleSpec, type TriggerLevel } from "../../triggers/rule.ts";
 import { recordAlertMails } from "../mail/outgoing.ts";
 import type { AlertMailFacts } from "../mail/compose.ts";
 import { mailConfigFromEnv, type MailConfig } from "../mail/config.ts";
 import { enqueueMails, scheduleDigest, startMailWorker } from "../mail/queue.ts";
 import { pgQuery } from "../ingest/pg-tx.ts";
-import { floatArray, intArray, textArray } from "../ingest/sql-arrays.ts";
+import { floatArray, intArray, intArrayBinary, textArray } from "../ingest/sql-arrays.ts";
 
 /** Advisory lock class of alert evaluation (the second key is the site id). */
 export const ALERT_LOCK_CLASS = 727_001;
@@ -45,7 +44,7 @@ const VALUE_FIELD: Record<BaseQuantity, { value: keyof ElementResult; sigma: key
   engineering: { value: "engineering", sigma: "sigmaEngineering" },
 };
 
-function sampleOf(row: ElementResult, base: BaseQuantity): QuantitySample {
+function sampleOf(row: ResultSample, base: BaseQuantity): QuantitySample {
   const f = VALUE_FIELD[base];
   const value = row.status === "ok" ? (row[f.value] as number | null) : null;
   const sigma = row.status === "ok" ? (row[f.sigma] as number | null) : null;
@@ -61,61 +60,127 @@ function responseFor(rule: { responseReview: string; responseAlert: string; resp
   return level === "review" ? rule.responseReview : level === "alert" ? rule.responseAlert : rule.responseLimit;
 }
 
+type ElementHead = { id: number; name: string; label: string; kind: string; referenceEpochId: number | null };
+/** The columns the state machine reads from a result row. */
+type ResultSample = Pick<ElementResult, "elementId" | "epochId" | "time" | "status"> & Partial<Record<keyof ElementResult, unknown>>;
+
+/**
+ * Everything evaluation reads that does not need the site's alert lock: the rules, the epochs, the
+ * elements and their results. Through the plain pg pool (Prisma's per-call cost is most of the time at
+ * thousands of rows); results are committed rows of committed epochs, which evaluation never writes.
+ * Results are read by the full key at the new epochs and at the site's current epoch just before them
+ * (the predecessor a rate needs); an element without a usable result there gets its own look-back.
+ */
+async function readInputs(siteId: number, epochIds: readonly number[]) {
+  const rules = await pgQuery<TriggerRule>(`SELECT * FROM "TriggerRule" WHERE "siteId" = $1 AND enabled ORDER BY id`, [siteId]);
+  if (rules.length === 0) return null;
+  const epochs = await pgQuery<{ id: number; time: Date }>(`SELECT id, "time" FROM "Epoch" WHERE "siteId" = $1 AND id = ANY($2::int[]) AND "isCurrent" ORDER BY "time", id`, [siteId, intArray([...epochIds])]);
+  if (epochs.length === 0) return null;
+  const allElementIds = [...new Set(rules.flatMap((r) => r.elementIds))];
+  const [head] = await pgQuery<{ siteRef: number | null; firstEpoch: number | null; prevId: number | null; prevTime: Date | null }>(
+    `SELECT s."referenceEpochId" AS "siteRef",
+            (SELECT id FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" ORDER BY "time", id LIMIT 1) AS "firstEpoch",
+            p.id AS "prevId", p."time" AS "prevTime"
+       FROM "Site" s
+       LEFT JOIN LATERAL (SELECT id, "time" FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" AND "time" < $2 ORDER BY "time" DESC, id DESC LIMIT 1) p ON true
+      WHERE s.id = $1`,
+    [siteId, epochs[0].time.toISOString()],
+  );
+  const siteRef = head?.siteRef ?? head?.firstEpoch ?? null;
+  const elementRows = await pgQuery<ElementHead>(
+    `SELECT id, name, label, kind, "referenceEpochId" FROM "Element" WHERE "siteId" = $1 AND id = ANY($2::int[]) AND "disabledAt" IS NULL`,
+    [siteId, intArray(allElementIds)],
+  );
+  const elements = new Map(elementRows.map((e) => [e.id, e]));
+  const refOf = (elementId: number): number | null => elements.get(elementId)?.referenceEpochId ?? siteRef;
+  const refs = [...elements.keys()].map((id) => ({ id, ref: refOf(id) })).filter((p): p is { id: number; ref: number } => p.ref !== null);
+
+  // Only the columns the rules compare (a whitelist: the names come from VALUE_FIELD).
+  const bases = [...new Set(rules.filter((r) => isRuleQuantity(r.quantity)).map((r) => parseQuantity(r.quantity as RuleQuantity).base))];
+  const cols = bases.flatMap((b) => [VALUE_FIELD[b].value, VALUE_FIELD[b].sigma]).map((c) => `r."${String(c)}"`);
+  const select = [`r."elementId"`, `r."epochId"`, `r."time"`, `r.status`, ...cols].join(", ");
+  const rateElements = new Set(rules.filter((r) => isRuleQuantity(r.quantity) && parseQuantity(r.quantity).isRate).flatMap((r) => r.elementIds));
+  const wantPrev = head?.prevId != null && rateElements.size > 0;
+  const at = [...(wantPrev ? [{ id: head.prevId as number, time: head.prevTime as Date }] : []), ...epochs];
+  const rows = await readPackedResults(refs, at, bases);
+  const rowAt = new Map<string, ResultSample>();
+  const prevRow = new Map<number, ResultSample>();
+  for (const r of rows) {
+    if (wantPrev && r.epochId === head.prevId) {
+      if (r.status === "ok" && rateElements.has(r.elementId)) prevRow.set(r.elementId, r);
+    } else rowAt.set(`${r.elementId}:${r.epochId}`, r);
+  }
+  // Rate elements without a usable result at the previous epoch: their last one before it.
+  const lookBack = refs.filter((p) => rateElements.has(p.id) && !prevRow.has(p.id));
+  if (lookBack.length > 0) {
+    const prev = await pgQuery<ResultSample>(
+      `SELECT p.* FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
+         CROSS JOIN LATERAL (
+           SELECT ${select} FROM "ElementResult" r
+            WHERE r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."time" < $3 AND r.status = 'ok'
+              AND r."epochId" NOT IN (SELECT e.id FROM "Epoch" e WHERE e."siteId" = $4 AND NOT e."isCurrent")
+            ORDER BY r."time" DESC, r."epochId" DESC LIMIT 1) p`,
+      [intArray(lookBack.map((p) => p.id)), intArray(lookBack.map((p) => p.ref)), epochs[0].time.toISOString(), siteId],
+    );
+    for (const p of prev) prevRow.set(p.elementId, p);
+  }
+  return { rules, epochs, elements, rowAt, prevRow };
+}
+
+/**
+ * Result rows of the given elements (with their references) at the given epochs, by the full key,
+ * returned as one row of packed big-endian byte strings (int4send/float8send, as lib/server/series.ts
+ * does) and unpacked here: thousands of rows cost one small decode instead of one parsed row object
+ * each. A NULL value or σ arrives as NaN and is given back as null.
+ */
+async function readPackedResults(refs: readonly { id: number; ref: number }[], at: readonly { id: number; time: Date }[], bases: readonly BaseQuantity[]): Promise<ResultSample[]> {
+  if (refs.length === 0 || at.length === 0) return [];
+  const cols = bases.flatMap((b) => [VALUE_FIELD[b].value, VALUE_FIELD[b].sigma]).map(String);
+  const agg = cols.map((c, i) => `string_agg(float8send(coalesce(r."${c}", 'NaN'::float8)), ''::bytea) AS c${i}`).join(", ");
+  const [packed] = await pgQuery<Record<string, Buffer | number | null>>(
+    `SELECT count(*)::int AS n, string_agg(int4send(r."elementId"), ''::bytea) AS e, string_agg(int4send(r."epochId"), ''::bytea) AS p,
+            string_agg(int4send((r.status = 'ok')::int), ''::bytea) AS ok${agg ? ", " + agg : ""}
+       FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
+       CROSS JOIN unnest($3::int[], $4::timestamptz[]) AS ep(id, t)
+       JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."time" = ep.t AND r."epochId" = ep.id`,
+    [intArrayBinary(refs.map((p) => p.id)), intArrayBinary(refs.map((p) => p.ref)), intArrayBinary(at.map((e) => e.id)), textArray(at.map((e) => e.time.toISOString()))],
+  );
+  const n = (packed?.n as number) ?? 0;
+  if (n === 0) return [];
+  const view = (b: unknown): DataView => {
+    const buf = b as Buffer;
+    return new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
+  };
+  const e = view(packed.e), p = view(packed.p), ok = view(packed.ok);
+  const c = cols.map((_, i) => view(packed[`c${i}`]));
+  const timeOf = new Map(at.map((x) => [x.id, x.time]));
+  const out: ResultSample[] = new Array(n);
+  for (let i = 0; i < n; i++) {
+    const epochId = p.getInt32(4 * i);
+    const row: ResultSample = { elementId: e.getInt32(4 * i), epochId, time: timeOf.get(epochId) as Date, status: ok.getInt32(4 * i) === 1 ? "ok" : "not-ok" };
+    for (let k = 0; k < cols.length; k++) {
+      const v = c[k].getFloat64(8 * i);
+      (row as Record<string, unknown>)[cols[k]] = Number.isNaN(v) ? null : v;
+    }
+    out[i] = row;
+  }
+  return out;
+}
+
 export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly number[], opts: EvaluateOptions): Promise<EvaluationReport> {
   const k = opts.k ?? DEFAULT_SIGNIFICANCE_K;
-  // Most epochs of most sites meet no enabled rule: answer that without opening a transaction.
-  const anyRule = await pgQuery<{ one: number }>(`SELECT 1 AS one FROM "TriggerRule" WHERE "siteId" = $1 AND enabled LIMIT 1`, [siteId]);
-  if (anyRule.length === 0 || epochIds.length === 0) return { transitions: [], queuedMailIds: [], digestItems: 0 };
+  const empty = (): EvaluationReport => ({ transitions: [], queuedMailIds: [], digestItems: 0 });
+  if (epochIds.length === 0) return empty();
+  // Most epochs of most sites meet no enabled rule: that is answered without opening a transaction.
+  const inputs = await readInputs(siteId, epochIds);
+  if (!inputs) return empty();
+  const { rules, epochs, elements, rowAt, prevRow } = inputs;
   return db.$transaction(
     async (tx) => {
       await tx.$executeRaw`SELECT pg_advisory_xact_lock(${ALERT_LOCK_CLASS}::int, ${siteId}::int)`;
-      const report: EvaluationReport = { transitions: [], queuedMailIds: [], digestItems: 0 };
+      const report = empty();
       const site = await tx.site.findUnique({ where: { id: siteId }, select: { id: true, slug: true, name: true, timeZone: true } });
-      if (!site || epochIds.length === 0) return report;
-      const rules = await tx.triggerRule.findMany({ where: { siteId, enabled: true }, orderBy: { id: "asc" } });
-      if (rules.length === 0) return report;
-      const epochs = await tx.epoch.findMany({
-        where: { siteId, id: { in: [...epochIds] }, isCurrent: true },
-        orderBy: [{ time: "asc" }, { id: "asc" }],
-        select: { id: true, time: true },
-      });
-      if (epochs.length === 0) return report;
-
-      const allElementIds = [...new Set(rules.flatMap((r) => r.elementIds))];
-      const elements = new Map(
-        (await tx.element.findMany({ where: { siteId, id: { in: allElementIds }, disabledAt: null } })).map((e) => [e.id, e]),
-      );
-      const siteRef = await siteReferenceEpochId(tx, siteId);
-      const refOf = (elementId: number): number | null => elements.get(elementId)?.referenceEpochId ?? siteRef;
-
-      // Results are read through the plain pg pool (committed rows of committed epochs; this
-      // transaction never writes them), by the full key, in two statements for all rules and elements.
-      const refs = [...elements.keys()].map((id) => ({ id, ref: refOf(id) })).filter((p): p is { id: number; ref: number } => p.ref !== null);
-      const rows = await pgQuery<ElementResult>(
-        `SELECT r.* FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
-           CROSS JOIN unnest($3::int[], $4::timestamptz[]) AS ep(id, t)
-           JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."time" = ep.t AND r."epochId" = ep.id`,
-        [intArray(refs.map((p) => p.id)), intArray(refs.map((p) => p.ref)), intArray(epochs.map((e) => e.id)), textArray(epochs.map((e) => e.time.toISOString()))],
-      );
-      const rowAt = new Map<string, ElementResult>();
-      for (const r of rows) rowAt.set(`${r.elementId}:${r.epochId}`, r);
-
-      // Rates: each element's last usable result (current revision) before the first new epoch.
-      const rateElements = new Set(rules.filter((r) => isRuleQuantity(r.quantity) && parseQuantity(r.quantity).isRate).flatMap((r) => r.elementIds));
-      const prevRow = new Map<number, ElementResult>();
-      const rateRefs = refs.filter((p) => rateElements.has(p.id));
-      if (rateRefs.length > 0) {
-        const prev = await pgQuery<ElementResult>(
-          `SELECT p.* FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
-             CROSS JOIN LATERAL (
-               SELECT r.* FROM "ElementResult" r
-                WHERE r."elementId" = k.eid AND r."referenceEpochId" = k.rid AND r."time" < $3 AND r.status = 'ok'
-                  AND r."epochId" NOT IN (SELECT e.id FROM "Epoch" e WHERE e."siteId" = $4 AND NOT e."isCurrent")
-                ORDER BY r."time" DESC, r."epochId" DESC LIMIT 1) p`,
-          [intArray(rateRefs.map((p) => p.id)), intArray(rateRefs.map((p) => p.ref)), epochs[0].time.toISOString(), siteId],
-        );
-        for (const p of prev) prevRow.set(p.elementId, p);
-      }
+      if (!site) return report;
 
       const recipients = await tx.mailRecipient.findMany({ where: { siteId } });
       const openAlerts = await tx.alert.findMany({ where: { siteId, clearedAt: null, ruleId: { in: rules.map((r) => r.id) } }, orderBy: { id: "asc" } });

@@ -22,7 +22,7 @@ import { auditSafe } from "../audit.ts";
 import { checkEpochBounds } from "../schemas/ingest.ts";
 import { computeResultsForEpochs } from "../results/compute.ts";
 import { afterEpochsCommitted } from "../pipeline.ts";
-import { floatArray, intArray, textArray } from "./sql-arrays.ts";
+import { floatArrayBinary, intArray, intArrayBinary, textArray } from "./sql-arrays.ts";
 import { withPgTransaction, type Sql } from "./pg-tx.ts";
 import type { EpochInput } from "../../formats/epoch-json.ts";
 
@@ -243,7 +243,7 @@ async function insertObservations(tx: Tx, epochs: { epochId: number; obs: Resolv
     await tx.query(
       `INSERT INTO "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight")
        SELECT * FROM unnest($1::int[], $2::int[], $3::float8[], $4::float8[], $5::float8[], $6::float8[], $7::float8[], $8::float8[])`,
-      [intArray(eid), intArray(pid), floatArray(e), floatArray(n), floatArray(h), floatArray(se), floatArray(sn), floatArray(sh)],
+      [intArrayBinary(eid), intArrayBinary(pid), floatArrayBinary(e), floatArrayBinary(n), floatArrayBinary(h), floatArrayBinary(se), floatArrayBinary(sn), floatArrayBinary(sh)],
     );
     eid = []; pid = []; e = []; n = []; h = []; se = []; sn = []; sh = [];
   };

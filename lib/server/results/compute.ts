@@ -19,7 +19,7 @@ import { computeElementStrain, type ElementSpec } from "../../strain/element.ts"
 import { STORED_VALUE_KEYS, storedValuesOf, type StoredValueKey, type StoredValues } from "../../strain/stored-values.ts";
 import { computeTriangleBatch, createTriangleBatchOut, BATCH_OK } from "../../strain/batch.ts";
 import type { ElementKind, ElementMode, SurveyPoint } from "../../strain/types.ts";
-import { floatArray, intArray, textArray } from "../ingest/sql-arrays.ts";
+import { floatArrayBinary, intArray, intArrayBinary, textArray } from "../ingest/sql-arrays.ts";
 import { currentDatabaseKey, type Sql } from "../ingest/pg-tx.ts";
 
 export type Tx = Prisma.TransactionClient | Db;
@@ -293,7 +293,7 @@ const RESULT_CHUNK = 50_000;
 async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean): Promise<void> {
   for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
     const j = Math.min(rows.length, i + RESULT_CHUNK);
-    const col = (k: StoredValueKey): string => floatArray(rows.values[k].slice(i, j));
+    const col = (k: StoredValueKey): Buffer => floatArrayBinary(rows.values[k].slice(i, j));
     await tx.query(
       `INSERT INTO "ElementResult" ("elementId", "epochId", "referenceEpochId", "time", "status",
          "greenMax", "greenMin", "maxShear", "arealStrain", "rotationDeg", "azimuthMaxDeg", "engineering",
@@ -308,9 +308,9 @@ async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean): P
          "sigmaGreenMax" = EXCLUDED."sigmaGreenMax", "sigmaGreenMin" = EXCLUDED."sigmaGreenMin", "sigmaMaxShear" = EXCLUDED."sigmaMaxShear",
          "sigmaArealStrain" = EXCLUDED."sigmaArealStrain", "sigmaEngineering" = EXCLUDED."sigmaEngineering"`}`,
       [
-        intArray(rows.elementId.slice(i, j)),
-        intArray(rows.epochId.slice(i, j)),
-        intArray(rows.referenceEpochId.slice(i, j)),
+        intArrayBinary(rows.elementId.slice(i, j)),
+        intArrayBinary(rows.epochId.slice(i, j)),
+        intArrayBinary(rows.referenceEpochId.slice(i, j)),
         textArray(rows.timeIso.slice(i, j)),
         textArray(rows.status.slice(i, j)),
         ...RESULT_KEYS.map(col),

@@ -1,0 +1,48 @@
+/**
+ * The bulk-statement array parameters read back by a real PostgreSQL exactly as sent: the binary
+ * forms (array_recv layout, PostgreSQL documentation "Arrays" and src/backend/utils/adt/arrayfuncs.c)
+ * and the text literals, for the values ingest and results send (nulls, signed zero, extremes of
+ * float8 and int4, an empty array).
+ */
+import { afterAll, describe, expect, it } from "vitest";
+import { floatArray, floatArrayBinary, intArray, intArrayBinary, textArray } from "../../../lib/server/ingest/sql-arrays.ts";
+import { closeIngestPools, pgQuery } from "../../../lib/server/ingest/pg-tx.ts";
+
+afterAll(async () => {
+  await closeIngestPools();
+});
+
+const FLOATS: (number | null)[] = [0, -0, 1.5, -2e-7, Number.MIN_VALUE, Number.MAX_VALUE, -Number.MAX_VALUE, 0.1 + 0.2, null, 5_000_000.123456789, Math.PI];
+const INTS: (number | null)[] = [0, 1, -1, 2147483647, -2147483648, null, 42];
+
+describe("array parameters for bulk statements", () => {
+  it("float8[] in binary and text form come back as the same doubles, in order, with NULLs", async () => {
+    const [r] = await pgQuery<{ b: (number | null)[]; t: (number | null)[] }>(`SELECT $1::float8[] AS b, $2::float8[] AS t`, [floatArrayBinary(FLOATS), floatArray(FLOATS)]);
+    expect(r.b).toEqual(FLOATS);
+    // The text literal prints −0 as 0 (JavaScript's String(−0)); every other value is the same double.
+    expect(r.t).toEqual(FLOATS.map((v) => (Object.is(v, -0) ? 0 : v)));
+    // Signed zero survives the binary path bit for bit (text prints both as 0).
+    const [z] = await pgQuery<{ s: string }>(`SELECT float8send(($1::float8[])[1])::text AS s`, [floatArrayBinary([-0])]);
+    expect(z.s).toBe("\\x8000000000000000");
+  });
+
+  it("int4[] in binary and text form come back equal, including the int4 extremes and NULL", async () => {
+    const [r] = await pgQuery<{ b: (number | null)[]; t: (number | null)[] }>(`SELECT $1::int[] AS b, $2::int[] AS t`, [intArrayBinary(INTS), intArray(INTS)]);
+    expect(r.b).toEqual(INTS);
+    expect(r.t).toEqual(INTS);
+  });
+
+  it("empty arrays unnest to no rows, and columns of different kinds unnest side by side", async () => {
+    const [e] = await pgQuery<{ n: number }>(`SELECT count(*)::int AS n FROM unnest($1::float8[], $2::int[])`, [floatArrayBinary([]), intArrayBinary([])]);
+    expect(e.n).toBe(0);
+    const rows = await pgQuery<{ i: number; f: number | null; s: string }>(`SELECT * FROM unnest($1::int[], $2::float8[], $3::text[]) AS u(i, f, s)`, [intArrayBinary([7, 8]), floatArrayBinary([null, 2.25]), textArray(["a\"b", "c\\d"])]);
+    expect(rows).toEqual([{ i: 7, f: null, s: "a\"b" }, { i: 8, f: 2.25, s: "c\\d" }]);
+  });
+
+  it("refuses values the columns cannot hold before anything is sent", () => {
+    expect(() => floatArrayBinary([1, Number.NaN])).toThrow(RangeError);
+    expect(() => floatArrayBinary([Number.POSITIVE_INFINITY])).toThrow(RangeError);
+    expect(() => intArrayBinary([2147483648])).toThrow(RangeError);
+    expect(() => intArrayBinary([1.5])).toThrow(RangeError);
+  });
+});
