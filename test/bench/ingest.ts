@@ -219,7 +219,9 @@ async function main(): Promise<void> {
     // ---------------------------------------------------------------- live epoch
     if (runLive) {
     const rnd = mulberry32(7);
-    const cols = 50;
+    // 50 points a row (the 2,000-point site is 40 rows); small scaling sizes get a square grid instead.
+    const cols = LIVE_POINTS >= 500 ? 50 : Math.max(2, Math.ceil(Math.sqrt(LIVE_POINTS)));
+    const baselines = Math.max(0, Math.min(100, LIVE_POINTS - cols));
     const livePts = Array.from({ length: LIVE_POINTS }, (_, i) => ({ code: `L${String(i + 1).padStart(4, "0")}`, east: 500 + (i % cols) * 5 + rnd() * 1.5, north: 800 + Math.floor(i / cols) * 5 + rnd() * 1.5, height: 50 + rnd() }));
     const liveSite = await db.site.create({ data: { slug: "bench-live", name: "Live", timeZone: "UTC" } });
     const tri = triangulatePlan(livePts);
@@ -227,10 +229,10 @@ async function main(): Promise<void> {
     await db.element.createMany({
       data: [
         ...tri.triangles.map((t) => ({ siteId: liveSite.id, name: t.id, kind: "triangle", mode: "plan", pointCodes: t.codes, source: "triangulation" })),
-        ...Array.from({ length: 100 }, (_, i) => ({ siteId: liveSite.id, name: `B${i}`, kind: "baseline", mode: "slope", pointCodes: [livePts[i].code, livePts[i + cols].code] })),
+        ...Array.from({ length: baselines }, (_, i) => ({ siteId: liveSite.id, name: `B${i}`, kind: "baseline", mode: "slope", pointCodes: [livePts[i].code, livePts[i + cols].code] })),
       ],
     });
-    const elementCount = tri.triangles.length + 100;
+    const elementCount = tri.triangles.length + baselines;
     // Trigger rules as a site would have them, so "evaluated" is real work: every triangle's greenMax
     // and its rate, every baseline's strain. Levels sit above the survey noise of this data (as a
     // site's engineer would set them), so each epoch runs the state machine for every element and

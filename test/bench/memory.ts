@@ -18,7 +18,7 @@ import { loadavg } from "node:os";
 import pg from "pg";
 import { chromium } from "playwright-core";
 import { createTestDatabase } from "../support/database.ts";
-import { ensureBuild } from "../../lib/server/cli/serve-core.ts";
+import { ensureBuild, serverNodeOptions } from "../../lib/server/cli/serve-core.ts";
 import { hashSecret, newSecret } from "../../lib/server/auth/secrets.ts";
 import { buildSyntheticSite } from "./page.ts";
 
@@ -93,7 +93,7 @@ async function main(): Promise<void> {
     const port = await freePort();
     const baseUrl = `http://127.0.0.1:${port}`;
     server = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-p", String(port), "-H", "127.0.0.1"], {
-      env: { ...process.env, DATABASE_URL: db.url, NEXT_TELEMETRY_DISABLED: "1" },
+      env: { ...process.env, DATABASE_URL: db.url, NEXT_TELEMETRY_DISABLED: "1", NODE_OPTIONS: serverNodeOptions() },
       stdio: ["ignore", "ignore", "inherit"],
     });
     for (let i = 0; ; i++) {
@@ -144,7 +144,7 @@ async function main(): Promise<void> {
     const result = {
       peakRssMb: Number((peakKb / 1024).toFixed(1)),
       notes: {
-        peakRssMb: `VmHWM of next start (${tree.length} process${tree.length > 1 ? "es" : ""}) after ${PAGE_LOADS} page loads in Chromium, ${seriesOk}/${elementIds.length} element series and ${posted}/${POSTS} live epochs of ${lastObs.rows.length} points; site ${site.points} points, ${site.epochs} epochs, ${site.elements} elements, ${site.results.toLocaleString("en-GB")} results; RSS after start ${(rssAfterStartKb / 1024).toFixed(0)} MB, at the end ${(rssKb / 1024).toFixed(0)} MB; load ${loadavg()[0].toFixed(1)}; goal ≤ 300 MB`,
+        peakRssMb: `VmHWM of next start (${tree.length} process${tree.length > 1 ? "es" : ""}) after ${PAGE_LOADS} page loads in Chromium, ${seriesOk}/${elementIds.length} element series and ${posted}/${POSTS} live epochs of ${lastObs.rows.length} points; site ${site.points} points, ${site.epochs} epochs, ${site.elements} elements, ${site.results.toLocaleString("en-GB")} results; RSS after start ${(rssAfterStartKb / 1024).toFixed(0)} MB, at the end ${(rssKb / 1024).toFixed(0)} MB; server heap cap ${process.env.EPOCHAL_SERVER_HEAP_MB ? `EPOCHAL_SERVER_HEAP_MB=${process.env.EPOCHAL_SERVER_HEAP_MB}` : "none (V8 default)"}; load ${loadavg()[0].toFixed(1)}; goal ≤ 300 MB`,
       },
     };
     if (json) console.log(JSON.stringify(result));

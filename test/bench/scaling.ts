@@ -5,9 +5,11 @@
  *
  *   node --import tsx test/bench/scaling.ts [--long] [--json] [--only kernel,backfill,live,series]
  *
- * Default sizes fit a few minutes on a 2-core machine; --long adds the largest of each (kernel 1e7
- * triangle-epochs, backfill at scale 1 = 17.5 M observations, a live epoch of 20,000 points,
- * 350,400 epochs of series). The kernel runs here; the others run the benchmark scripts beside this
+ * Sizes span 1,000× (four sizes 10× apart): kernel 1e4…1e7 triangle-epochs, a live epoch of 20…20,000
+ * points (39,000 elements at the top), series of 350…350,400 epochs (ten years of 15-minute epochs);
+ * the backfill 1,750…1.75 M observations, and with --long also scale 1 (17.5 M observations, a year of
+ * 500 points, which alone takes over half an hour on a shared 2-core machine). The kernel runs here;
+ * the others run the benchmark scripts beside this
  * one (ingest.ts --only backfill|live, series.ts --epochs) and read their JSON line. The live epoch
  * runs in-process (route handler, no HTTP server) so that no build is needed.
  * Needs DATABASE_URL's server or the embedded default (each script makes its own database).
@@ -88,14 +90,14 @@ function script(file: string, args: string[]): Record<string, unknown> | null {
 }
 
 if (want("kernel")) {
-  for (const n of long ? [1e5, 1e6, 1e7] : [1e5, 1e6]) {
+  for (const n of [1e4, 1e5, 1e6, 1e7]) {
     say(`kernel ${n.toExponential(0)} triangle-epochs …`);
     const s = kernelAt(n);
     rows.push({ what: "strain kernel", size: n, unit: "triangle-epochs", figure: s * 1e3, figureUnit: "ms CPU", perItem: (s * 1e9) / n, load: loadavg()[0] });
   }
 }
 if (want("backfill")) {
-  for (const scale of long ? [0.01, 0.1, 1] : [0.01, 0.1]) {
+  for (const scale of long ? [0.001, 0.01, 0.1, 1] : [0.001, 0.01, 0.1]) {
     say(`backfill scale ${scale} …`);
     const o = script("ingest.ts", ["--only", "backfill", "--scale", String(scale)]);
     if (!o) continue;
@@ -105,7 +107,7 @@ if (want("backfill")) {
   }
 }
 if (want("live")) {
-  for (const pts of long ? [200, 2000, 20000] : [200, 2000]) {
+  for (const pts of [20, 200, 2000, 20000]) {
     say(`live epoch ${pts} points …`);
     const o = script("ingest.ts", ["--only", "live", "--mode", "in-process", "--live-points", String(pts), "--live-posts", pts >= 20000 ? "8" : "20"]);
     if (!o) continue;
@@ -114,7 +116,7 @@ if (want("live")) {
   }
 }
 if (want("series")) {
-  for (const ep of long ? [3504, 35040, 350400] : [3504, 35040]) {
+  for (const ep of [350, 3504, 35040, 350400]) {
     say(`series ${ep} epochs …`);
     const o = script("series.ts", ["--epochs", String(ep)]);
     if (!o) continue;
@@ -137,5 +139,5 @@ else {
       `${r.what.padEnd(28)} ${`${r.size.toLocaleString("en-GB")} ${r.unit}`.padEnd(27)} ${`${r.figure.toFixed(1)} ${r.figureUnit}`.padEnd(17)} ${r.perItem.toFixed(1).padStart(11)}   ${exponent(i).padStart(8)}   ${r.load.toFixed(1).padStart(4)}   ${r.note ?? ""}`,
     ),
   );
-  console.log("exponent: log(t₂/t₁)/log(n₂/n₁) against the size above; 1 = linear. Sizes 10× apart; --long adds the largest.");
+  console.log("exponent: log(t₂/t₁)/log(n₂/n₁) against the size above; 1 = linear. Sizes 10× apart; --long adds the full-year backfill.");
 }

@@ -45,6 +45,21 @@ export function ensureBuild(root = projectRoot(), force = false): void {
   writeFileSync(join(root, distDir(), "epochal-source-stamp"), `${head}\n${dirty}`);
 }
 
+/**
+ * Node options for the `next start` process. EPOCHAL_SERVER_HEAP_MB caps V8's old space (and keeps
+ * the young generation small): V8 grows its heap lazily, so an uncapped server's resident set
+ * mostly reflects garbage not yet collected (test/bench/memory.ts: 445 MB peak uncapped, 239 MB
+ * with a 128 MB cap, same work). It is not set by default because the largest upload needs far
+ * more: a 50 MB epoch file (EPOCHAL_MAX_UPLOAD_BYTES) took about 700 MB of heap to parse and store,
+ * and a heap too small for a request stops the server. Lower the upload limit with the cap.
+ */
+export function serverNodeOptions(env: NodeJS.ProcessEnv = process.env): string | undefined {
+  const mb = Number(env.EPOCHAL_SERVER_HEAP_MB);
+  const own = Number.isFinite(mb) && mb >= 64 ? `--max-old-space-size=${Math.floor(mb)} --max-semi-space-size=4` : "";
+  const joined = [env.NODE_OPTIONS ?? "", own].filter(Boolean).join(" ");
+  return joined || undefined;
+}
+
 export async function serve(opts: ServeOptions): Promise<number> {
   const root = projectRoot();
   const target = await openDatabaseUrl((m) => console.log(m));
@@ -58,7 +73,7 @@ export async function serve(opts: ServeOptions): Promise<number> {
   const child = spawn(process.execPath, [nextBin(root), "start", "-p", String(opts.port), "-H", opts.host], {
     cwd: root,
     stdio: ["ignore", "pipe", "inherit"],
-    env: { ...process.env, DATABASE_URL: target.url, NEXT_TELEMETRY_DISABLED: "1", EPOCHAL_PUBLIC_URL: process.env.EPOCHAL_PUBLIC_URL ?? `http://localhost:${opts.port}` },
+    env: { ...process.env, NODE_OPTIONS: serverNodeOptions(), DATABASE_URL: target.url, NEXT_TELEMETRY_DISABLED: "1", EPOCHAL_PUBLIC_URL: process.env.EPOCHAL_PUBLIC_URL ?? `http://localhost:${opts.port}` },
   });
   child.stdout?.on("data", (chunk: Buffer) => {
     const text = chunk.toString();
