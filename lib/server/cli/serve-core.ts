@@ -53,7 +53,7 @@ export function ensureBuild(root = projectRoot(), force = false): void {
  * more: a 50 MB epoch file (EPOCHAL_MAX_UPLOAD_BYTES) took about 700 MB of heap to parse and store,
  * and a heap too small for a request stops the server. Lower the upload limit with the cap.
  */
-export function serverNodeOptions(env: NodeJS.ProcessEnv = process.env): string | undefined {
+export function serverNodeOptions(env: Readonly<Record<string, string | undefined>> = process.env): string | undefined {
   const mb = Number(env.EPOCHAL_SERVER_HEAP_MB);
   const own = Number.isFinite(mb) && mb >= 64 ? `--max-old-space-size=${Math.floor(mb)} --max-semi-space-size=4` : "";
   const joined = [env.NODE_OPTIONS ?? "", own].filter(Boolean).join(" ");
