@@ -309,7 +309,7 @@ async function main(): Promise<void> {
       times.push(performance.now() - t);
       if (st !== 201) throw new Error(`live post answered ${st}`);
     }
-    const rows = await db.elementResult.count({ where: { elementId: { in: (await db.element.findMany({ where: { siteId: liveSite.id }, select: { id: true } })).map((e) => e.id) } } });
+    const [{ rows }] = await db.$queryRawUnsafe<{ rows: number }[]>(`SELECT count(*)::int AS rows FROM "ElementResult" WHERE "elementId" IN (SELECT id FROM "Element" WHERE "siteId" = $1)`, liveSite.id);
     if (rows !== elementCount * (3 + livePosts)) throw new Error(`expected ${elementCount * (3 + livePosts)} result rows, found ${rows}`);
     times.sort((a, b) => a - b);
     out.liveAlerts = await db.alert.count({ where: { siteId: liveSite.id } });
