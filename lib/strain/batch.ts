@@ -79,6 +79,7 @@ export interface TriangleBatchInput {
 }
 
 const RAD_TO_DEG = 180 / Math.PI;
+const KERNEL_CONSTANTS = Float64Array.of(SHAPE_TOLERANCE, ISOTROPY_TOLERANCE, RAD_TO_DEG);
 /** Slots per block of the two-pass loop (see computeTriangleBatch); a block's outputs stay in L1/L2. */
 const BLOCK = 256;
 /** Per-triangle reference record: Xa, Ya, Xb, Yb, Xc, Yc, G00, G01, G10, G11 (G = NaN: shape fails). */
@@ -112,12 +113,11 @@ export function computeTriangleBatch(input: TriangleBatchInput, out: TriangleBat
   if (withSigma && (!sigmaRef || !sigmaCur || sigmaRef.length !== refXY.length || sigmaCur.length !== curXY.length)) {
     throw new RangeError("computeTriangleBatch: sigmaRef and sigmaCur must match refXY and curXY");
   }
-  // Module constants copied into local doubles: the optimising JIT would otherwise reload (and
-  // type-check) them from the module context in every iteration of the loops below.
-  const shapeTol = SHAPE_TOLERANCE * 1;
-  const isoTol = ISOTROPY_TOLERANCE * 1;
-  const toDeg = RAD_TO_DEG * 1;
-  const OK = BATCH_OK | 0, DEGENERATE = BATCH_DEGENERATE | 0, NON_FINITE = BATCH_NON_FINITE | 0;
+  // Module constants read once into locals: the optimising JIT would otherwise reload (and type-check)
+  // them from the module context in every iteration of the loops below. Read from a Float64Array, the
+  // tolerances stay raw doubles in registers.
+  const shapeTol = KERNEL_CONSTANTS[0], isoTol = KERNEL_CONSTANTS[1], toDeg = KERNEL_CONSTANTS[2];
+  const OK = BATCH_OK, DEGENERATE = BATCH_DEGENERATE, NON_FINITE = BATCH_NON_FINITE;
 
   // Reference-epoch quantities once per triangle (one allocation per call, none in the slot loops):
   // the vertices and G = D_X⁻¹ row-major, one record per triangle, so that the slot loop reads one
@@ -136,11 +136,17 @@ export function computeTriangleBatch(input: TriangleBatchInput, out: TriangleBat
     for (let k = 0; k < 6; k++) ref[o + k] = refXY[r + k];
     // A reference shape that fails the test gets G = NaN: every slot of the triangle then fails the
     // tests of pass 1 and is degenerate (or non-finite), without a flag to read per slot.
-    const ok = Math.abs(det) >= shapeTol * lRef;
-    ref[o + 6] = ok ? e2y * inv : NaN;
-    ref[o + 7] = ok ? -e2x * inv : NaN;
-    ref[o + 8] = ok ? -e1y * inv : NaN;
-    ref[o + 9] = ok ? e1x * inv : NaN;
+    if (Math.abs(det) >= shapeTol * lRef) {
+      ref[o + 6] = e2y * inv;
+      ref[o + 7] = -e2x * inv;
+      ref[o + 8] = -e1y * inv;
+      ref[o + 9] = e1x * inv;
+    } else {
+      ref[o + 6] = NaN;
+      ref[o + 7] = NaN;
+      ref[o + 8] = NaN;
+      ref[o + 9] = NaN;
+    }
   }
 
   // Blocks of BLOCK slots. Pass 1 computes everything but the azimuth, and leaves the azimuth's
@@ -249,7 +255,7 @@ function sigmaPass(s0: number, s1: number, nTri: number, ref: Float64Array, out:
   const sGMin = out.sigmaGreenMin as Float64Array;
   const sShear = out.sigmaMaxShear as Float64Array;
   const sAreal = out.sigmaArealStrain as Float64Array;
-  const OK = BATCH_OK | 0;
+  const OK = BATCH_OK;
   for (let s = s0, t = s0 % nTri; s < s1; s++, t = t + 1 === nTri ? 0 : t + 1) {
     if (status[s] !== OK) {
       sGMax[s] = NaN;
