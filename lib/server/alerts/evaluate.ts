@@ -25,6 +25,8 @@ import type { AlertMailFacts } from "../mail/compose.ts";
 import { mailConfigFromEnv, type MailConfig } from "../mail/config.ts";
 import { enqueueMails, scheduleDigest, startMailWorker } from "../mail/queue.ts";
 import { pgQuery } from "../ingest/pg-tx.ts";
+import { computedResultsOf } from "../results/compute.ts";
+import type { StoredValueKey } from "../../strain/stored-values.ts";
 import { floatArray, intArray, intArrayBinary, textArray } from "../ingest/sql-arrays.ts";
 
 /** Advisory lock class of alert evaluation (the second key is the site id). */
@@ -102,7 +104,24 @@ async function readInputs(siteId: number, epochIds: readonly number[]) {
   const rateElements = new Set(rules.filter((r) => isRuleQuantity(r.quantity) && parseQuantity(r.quantity).isRate).flatMap((r) => r.elementIds));
   const wantPrev = head?.prevId != null && rateElements.size > 0;
   const at = [...(wantPrev ? [{ id: head.prevId as number, time: head.prevTime as Date }] : []), ...epochs];
-  const rows = await readPackedResults(refs, at, bases);
+  // Epochs this process has just computed come from memory; the others from the database.
+  const rows: ResultSample[] = [];
+  const fromDb: { id: number; time: Date }[] = [];
+  const colsOf = bases.flatMap((b) => [VALUE_FIELD[b].value, VALUE_FIELD[b].sigma]) as StoredValueKey[];
+  for (const ep of at) {
+    const c = computedResultsOf(ep.id);
+    if (!c || refs.some((p) => !c.index.has(`${p.id}:${p.ref}`))) {
+      fromDb.push(ep);
+      continue;
+    }
+    for (const p of refs) {
+      const i = c.index.get(`${p.id}:${p.ref}`) as number;
+      const row: ResultSample = { elementId: p.id, epochId: ep.id, time: ep.time, status: c.columns.status[i] };
+      for (const k of colsOf) (row as Record<string, unknown>)[k] = c.columns.values[k][i];
+      rows.push(row);
+    }
+  }
+  if (fromDb.length > 0) rows.push(...(await readPackedResults(refs, fromDb, bases)));
   const rowAt = new Map<string, ResultSample>();
   const prevRow = new Map<number, ResultSample>();
   for (const r of rows) {

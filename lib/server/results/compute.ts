@@ -83,14 +83,14 @@ interface SiteElements {
 }
 
 const CACHE_KEY = Symbol.for("epochal.results.cache");
-type Cache = { sites: Map<string, SiteElements>; refPoints: Map<string, EpochPoints> };
+type Cache = { sites: Map<string, SiteElements>; refPoints: Map<string, EpochPoints>; computed: Map<string, ComputedEpoch> };
 type CacheHolder = { [CACHE_KEY]?: Cache };
 /** Reference epochs whose points are kept (a few per site; each ~2,000 points is ~0.5 MB). */
 const REF_CACHE_SIZE = 16;
 
 function cache(): Cache {
   const h = globalThis as CacheHolder;
-  h[CACHE_KEY] ??= { sites: new Map(), refPoints: new Map() };
+  h[CACHE_KEY] ??= { sites: new Map(), refPoints: new Map(), computed: new Map() };
   return h[CACHE_KEY];
 }
 
@@ -137,7 +137,7 @@ function prepareGroup(els: ElementRow[], ref: EpochPoints): PreparedGroup {
 }
 
 /** Result rows column by column (what the unnest INSERT takes), without one object per row. */
-class ResultColumns {
+export class ResultColumns {
   readonly elementId: number[] = [];
   readonly epochId: number[] = [];
   readonly referenceEpochId: number[] = [];
@@ -160,6 +160,46 @@ class ResultColumns {
   }
 }
 const RESULT_KEYS = STORED_VALUE_KEYS;
+
+/**
+ * The rows just computed for one epoch, kept in memory for the alert evaluation that follows its
+ * commit (lib/server/alerts/evaluate.ts reads them instead of reading them back, and reads the
+ * previous epoch's from here too when this process computed it). Only epochs stored in the same
+ * transaction are kept (their rows are never recomputed), keyed by database and epoch id; an epoch
+ * id is never reused, so an entry of a transaction that rolled back is never asked for (evaluation
+ * only asks for committed current epochs). The last few epochs per process are kept.
+ */
+export interface ComputedEpoch {
+  epochId: number;
+  columns: ResultColumns;
+  /** Row index in `columns` by `${elementId}:${referenceEpochId}`. */
+  index: Map<string, number>;
+}
+const COMPUTED_KEEP = 8;
+
+/** The rows computed in this process for that epoch, or undefined. */
+export function computedResultsOf(epochId: number): ComputedEpoch | undefined {
+  return cache().computed.get(`${currentDatabaseKey()}#${epochId}`);
+}
+
+/** Drops the kept rows of these epochs (tests: to make evaluation read them from the database). */
+export function forgetComputedResults(epochIds: readonly number[]): void {
+  for (const id of epochIds) cache().computed.delete(`${currentDatabaseKey()}#${id}`);
+}
+
+function keepComputed(dbKey: string, rows: ResultColumns): void {
+  const byEpoch = new Map<number, Map<string, number>>();
+  for (let i = 0; i < rows.length; i++) {
+    let m = byEpoch.get(rows.epochId[i]);
+    if (!m) byEpoch.set(rows.epochId[i], (m = new Map()));
+    m.set(`${rows.elementId[i]}:${rows.referenceEpochId[i]}`, i);
+  }
+  const c = cache().computed;
+  for (const [epochId, index] of byEpoch) {
+    c.set(`${dbKey}#${epochId}`, { epochId, columns: rows, index });
+    while (c.size > COMPUTED_KEEP) c.delete(c.keys().next().value as string);
+  }
+}
 
 /** An epoch to compute: its id, or (from the ingest service) its id, time and points as just stored. */
 export type EpochToCompute = number | { id: number; time: string | Date; points: EpochPoints };
@@ -284,6 +324,8 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
     }
   }
   await insertResultRows(tx, rows, opts.newEpochs === true);
+  // Live epochs (one or a few per request) are kept for the alert evaluation after commit; backfills are not.
+  if (opts.newEpochs === true && epochIds.length <= 4) keepComputed(dbKey, rows);
   return rows.length;
 }
 
