@@ -122,12 +122,14 @@ async function readInputs(siteId: number, epochIds: readonly number[]) {
     }
   }
   if (fromDb.length > 0) rows.push(...(await readPackedResults(refs, fromDb, bases)));
-  const rowAt = new Map<string, ResultSample>();
+  /** Result rows by epoch id, then element id. */
+  const rowAt = new Map<number, Map<number, ResultSample>>();
+  for (const ep of epochs) rowAt.set(ep.id, new Map());
   const prevRow = new Map<number, ResultSample>();
   for (const r of rows) {
     if (wantPrev && r.epochId === head.prevId) {
       if (r.status === "ok" && rateElements.has(r.elementId)) prevRow.set(r.elementId, r);
-    } else rowAt.set(`${r.elementId}:${r.epochId}`, r);
+    } else rowAt.get(r.epochId)?.set(r.elementId, r);
   }
   // Rate elements without a usable result at the previous epoch: their last one before it.
   const lookBack = refs.filter((p) => rateElements.has(p.id) && !prevRow.has(p.id));
@@ -232,7 +234,7 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
 
           for (const ep of epochs) {
             if (ep.time.getTime() <= watermark) continue;
-            const row = rowAt.get(`${elementId}:${ep.id}`);
+            const row = rowAt.get(ep.id)?.get(elementId);
             if (!row) continue;
             const sample = sampleOf(row, base);
             const v = comparedValueOf(rule.quantity, sample, prev, k);
