@@ -5,3 +5,4 @@ export * from "./lttb.ts";
 export * from "./trend.ts";
 export * from "./inverse-velocity.ts";
 export * from "./local-time.ts";
+export * from "./packed.ts";

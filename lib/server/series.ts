@@ -7,7 +7,7 @@
  * (luxon), for display. Element series read ElementResult rows against the element's effective
  * reference epoch, at current epochs (a superseded revision's rows are kept in the table but never
  * shown), status "ok" only (other epochs are counted in `skipped`). The read is one lean
- * raw query that returns the three needed columns as packed float8 arrays (one row), decoded into
+ * raw query that returns the three needed columns as packed 8-byte arrays (one row), decoded into
  * Float64Arrays, so a year of 15-minute epochs costs a few milliseconds rather than 35,040 row objects.
  */
 // No "server-only" marker: the benchmark and the CLI import this module outside Next.js too.
@@ -15,9 +15,11 @@ import { Prisma } from "./db/generated/client.ts";
 import type { Db } from "./db/client.ts";
 import type { SiteRow } from "./http/route.ts";
 import { AppError } from "./errors.ts";
+import { pgQuery } from "./ingest/pg-tx.ts";
 import { incrementalSeries, isSignificant, rateSeries, type SeriesArrays } from "../series/increments.ts";
 import { downsampleIndices } from "../series/lttb.ts";
 import { localIsoTimes } from "../series/local-time.ts";
+import { decodeFloat8BE, decodePgTimestampsMs, orderByTime } from "../series/packed.ts";
 import { displacementComponent, type DisplacementComponent } from "../series/displacement.ts";
 import { effectiveReferenceEpochId } from "./results/element-history.ts";
 import { getElementRow } from "./elements.ts";
@@ -62,71 +64,64 @@ export interface SeriesResponse {
   points: SeriesPoint[];
 }
 
-/** Decodes a big-endian float8 byte string (PostgreSQL float8send) into a Float64Array. */
-function decodeFloat8(bytes: Uint8Array | null, n: number): Float64Array {
-  const out = new Float64Array(n);
-  if (!bytes || n === 0) return out;
-  const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  for (let i = 0; i < n; i++) out[i] = dv.getFloat64(8 * i, false);
-  return out;
-}
-
 type Packed = { n: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8Array | null; skipped: number };
 
 /**
- * The element's site's superseded epoch revisions (few; the index on (siteId, isCurrent, time) finds
- * them). Excluding these is much cheaper than joining every result row to its epoch.
+ * Rows of an element against one reference at the site's current epoch revisions. Superseded
+ * revisions are few; the hashed sub-plan over them (index on (siteId, isCurrent, time)) costs less
+ * than joining every result row to its epoch. `$1` is the element, `$2` the reference.
  */
-function supersededEpochs(elementId: number): Prisma.Sql {
-  return Prisma.sql`SELECT e.id FROM "Epoch" e WHERE e."siteId" = (SELECT el."siteId" FROM "Element" el WHERE el.id = ${elementId}) AND NOT e."isCurrent"`;
-}
+const CURRENT_ROWS = `r."elementId" = $1 AND r."referenceEpochId" = $2
+  AND r."epochId" NOT IN (SELECT e.id FROM "Epoch" e WHERE e."siteId" = (SELECT el."siteId" FROM "Element" el WHERE el.id = $1) AND NOT e."isCurrent")`;
 
 /**
- * One row: n, skipped, and the times (ms), values, σ as packed big-endian float8 byte strings. The
- * rows come from an index scan in time order and the aggregates take them in that order (one sort,
- * not one per aggregate); `decodePacked` checks the order and sorts if it ever were not.
+ * One row: n, skipped, and the times, values and σ as packed byte strings, through the plain `pg`
+ * pool (lib/server/ingest/pg-tx.ts) rather than Prisma, whose raw path copies and decodes the three
+ * quarter-megabyte strings slowly. Measured on a year of 15-minute epochs (test/bench/series.ts,
+ * EXPLAIN ANALYZE and backend CPU time), what the read costs and what this query avoids:
+ * - times go out as timestamptz_send (the stored int64 µs, a copy) and are converted in Node:
+ *   `extract(epoch …)` returns numeric, and numeric arithmetic per row was a third of the query;
+ * - no ORDER BY: sorting 35,040 rows was another third. The aggregates all advance on the same input
+ *   row, so the three strings stay aligned whatever the scan order, and the scan order is the
+ *   insertion order, which live ingest writes in time order; `decodePacked` checks the order and
+ *   sorts only when it is not (a back-filled site; lib/series/packed.ts). Times are unique here
+ *   (one current revision per site and time, index "Epoch_one_current"): no tie-break is needed.
  */
-async function readPacked(db: Db, elementId: number, refId: number, q: { value: string; sigma: string | null }, from: Date | null, to: Date | null): Promise<Packed> {
-  const v = Prisma.raw(`r."${q.value}"`);
-  const s = q.sigma ? Prisma.raw(`coalesce(r."${q.sigma}", 'NaN'::float8)`) : Prisma.raw(`'NaN'::float8`);
-  const lo = from ? Prisma.sql`AND r."time" >= ${from}` : Prisma.empty;
-  const hi = to ? Prisma.sql`AND r."time" <= ${to}` : Prisma.empty;
-  const rows = await db.$queryRaw<{ n: number; skipped: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8Array | null }[]>`
-    SELECT (count(*) FILTER (WHERE ok))::int AS n,
-           (count(*) FILTER (WHERE NOT ok))::int AS skipped,
-           string_agg(float8send(tm), ''::bytea) FILTER (WHERE ok) AS t,
-           string_agg(float8send(val), ''::bytea) FILTER (WHERE ok) AS v,
-           string_agg(float8send(sig), ''::bytea) FILTER (WHERE ok) AS s
-      FROM (SELECT (extract(epoch FROM r."time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig, (r.status = 'ok' AND ${v} IS NOT NULL) AS ok
-              FROM "ElementResult" r
-             WHERE r."elementId" = ${elementId} AND r."referenceEpochId" = ${refId} ${lo} ${hi}
-               AND r."epochId" NOT IN (${supersededEpochs(elementId)})
-             ORDER BY r."time", r."epochId") x`;
-  const r = rows[0];
-  return { n: r.n, t: r.t, v: r.v, s: r.s, skipped: r.skipped };
+async function readPacked(elementId: number, refId: number, q: { value: string; sigma: string | null }, from: Date | null, to: Date | null): Promise<Packed> {
+  const v = `r."${q.value}"`;
+  const s = q.sigma ? `coalesce(r."${q.sigma}", 'NaN'::float8)` : `'NaN'::float8`;
+  const params: unknown[] = [elementId, refId];
+  const lo = from ? `AND r."time" >= $${params.push(from)}::timestamptz` : "";
+  const hi = to ? `AND r."time" <= $${params.push(to)}::timestamptz` : "";
+  const rows = await pgQuery<Packed>(
+    `SELECT (count(*) FILTER (WHERE ok))::int AS n,
+            (count(*) FILTER (WHERE NOT ok))::int AS skipped,
+            string_agg(timestamptz_send(tm), ''::bytea) FILTER (WHERE ok) AS t,
+            string_agg(float8send(val), ''::bytea) FILTER (WHERE ok) AS v,
+            string_agg(float8send(sig), ''::bytea) FILTER (WHERE ok) AS s
+       FROM (SELECT r."time" AS tm, ${v} AS val, ${s} AS sig, (r.status = 'ok' AND ${v} IS NOT NULL) AS ok
+               FROM "ElementResult" r
+              WHERE ${CURRENT_ROWS} ${lo} ${hi}) x`,
+    params,
+  );
+  return rows[0];
 }
 
 function decodePacked(p: Packed): SeriesArrays {
-  const out: SeriesArrays = { tMs: decodeFloat8(p.t, p.n), value: decodeFloat8(p.v, p.n), sigma: decodeFloat8(p.s, p.n) };
-  for (let i = 1; i < p.n; i++) if (out.tMs[i] < out.tMs[i - 1]) return sortByTime(out);
-  return out;
-}
-
-function sortByTime(s: SeriesArrays): SeriesArrays {
-  const idx = Array.from(s.tMs.keys()).sort((a, b) => s.tMs[a] - s.tMs[b]);
-  return { tMs: Float64Array.from(idx, (i) => s.tMs[i]), value: Float64Array.from(idx, (i) => s.value[i]), sigma: Float64Array.from(idx, (i) => s.sigma[i]) };
+  return orderByTime({ tMs: decodePgTimestampsMs(p.t, p.n), value: decodeFloat8BE(p.v, p.n), sigma: decodeFloat8BE(p.s, p.n) });
 }
 
 /** The last usable value strictly before `from` (the predecessor an increment at `from` needs). */
-async function readBefore(db: Db, elementId: number, refId: number, q: { value: string; sigma: string | null }, from: Date): Promise<{ tMs: number; value: number; sigma: number } | null> {
-  const v = Prisma.raw(`r."${q.value}"`);
-  const s = q.sigma ? Prisma.raw(`r."${q.sigma}"`) : Prisma.raw(`NULL::float8`);
-  const rows = await db.$queryRaw<{ tm: number; val: number; sig: number | null }[]>`
-    SELECT (extract(epoch FROM r."time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig
-      FROM "ElementResult" r
-     WHERE r."elementId" = ${elementId} AND r."referenceEpochId" = ${refId} AND r."time" < ${from} AND r.status = 'ok' AND ${v} IS NOT NULL
-       AND r."epochId" NOT IN (${supersededEpochs(elementId)})
-     ORDER BY r."time" DESC, r."epochId" DESC LIMIT 1`;
+async function readBefore(elementId: number, refId: number, q: { value: string; sigma: string | null }, from: Date): Promise<{ tMs: number; value: number; sigma: number } | null> {
+  const v = `r."${q.value}"`;
+  const s = q.sigma ? `r."${q.sigma}"` : `NULL::float8`;
+  const rows = await pgQuery<{ tm: number; val: number; sig: number | null }>(
+    `SELECT (extract(epoch FROM r."time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig
+       FROM "ElementResult" r
+      WHERE ${CURRENT_ROWS} AND r."time" < $3::timestamptz AND r.status = 'ok' AND ${v} IS NOT NULL
+      ORDER BY r."time" DESC, r."epochId" DESC LIMIT 1`,
+    [elementId, refId, from],
+  );
   return rows[0] ? { tMs: rows[0].tm, value: rows[0].val, sigma: rows[0].sig ?? NaN } : null;
 }
 
@@ -172,9 +167,11 @@ const LTTB_METHOD = "largest-triangle-three-buckets (Steinarsson 2013), keeping 
 const INCREMENT_NOTE = "σ of increments and rates treats the two cumulative values as independent (first order); the shared reference makes the true σ somewhat smaller.";
 
 /** The element's cumulative values in [from, to] as typed arrays, and the reference used. */
-export async function readElementArrays(db: Db, elementId: number, refId: number, quantity: ElementQuantity, from: Date | null, to: Date | null): Promise<SeriesArrays & { skipped: number }> {
+export async function readElementArrays(_db: Db, elementId: number, refId: number, quantity: ElementQuantity, from: Date | null, to: Date | null): Promise<SeriesArrays & { skipped: number }> {
+  // Committed rows only, through the pg pool on the same DATABASE_URL (see readPacked); `_db` keeps
+  // the signature of the other reads (callers never pass a transaction).
   const q = QUANTITY_COLUMNS[quantity];
-  const p = await readPacked(db, elementId, refId, q, from, to);
+  const p = await readPacked(elementId, refId, q, from, to);
   return { ...decodePacked(p), skipped: p.skipped };
 }
 
@@ -194,7 +191,7 @@ export async function elementSeries(db: Db, site: SiteRow, elementId: number, qu
   ]);
   let base: SeriesArrays = arrays;
   if (query.mode !== "cumulative" && query.from) {
-    const prev = await readBefore(db, el.id, refId, q, query.from);
+    const prev = await readBefore(el.id, refId, q, query.from);
     if (prev) base = prepend(arrays, prev);
   }
   const s = view(base, query.mode);

@@ -4,6 +4,7 @@ import * as list from "../../../app/api/v1/sites/[slug]/elements/route.ts";
 import * as series from "../../../app/api/v1/sites/[slug]/elements/[id]/series/route.ts";
 import * as trend from "../../../app/api/v1/sites/[slug]/elements/[id]/trend/route.ts";
 import * as pointSeries from "../../../app/api/v1/sites/[slug]/points/[code]/series/route.ts";
+import { decodeFloat8BE, decodePgTimestampsMs } from "../../../lib/series/packed.ts";
 import { addEpochs, call, hoursAfter, makeSite, sessionFor, SIGMA_H } from "./fixtures.ts";
 
 const T0 = "2026-03-01T00:00:00.000Z";
@@ -130,6 +131,45 @@ describe("GET /api/v1/sites/{slug}/elements/{id}/series", () => {
     await db.elementResult.create({ data: { elementId: id, epochId: rev.id, referenceEpochId: ref, time: rev.time, status: "ok", engineering: 3e-4, sigmaEngineering: 2e-4 } });
     const r = await call(series.GET, { method: "GET", path: "/x", params: { slug: s.slug, id: String(id) }, cookie: engineer, query: { quantity: "engineering" } });
     expect((r.json.points as Pt[]).map((p) => p.value)).toEqual([expect.closeTo(0, 12), 3e-4]);
+  });
+
+  it("returns a back-filled series in time order, with increments between neighbours in time", async () => {
+    // Results stored newest first (a site whose history was loaded backwards): the read takes rows in
+    // storage order and must give the same series as rows stored in time order.
+    const db = getDb();
+    const s = await makeSite({ points: ["A", "B"] });
+    const [ref] = await addEpochs(s, [{ time: T0, points: { A: { east: 0, north: 0 }, B: { east: 10, north: 0 } } }]);
+    const el = await db.element.create({ data: { siteId: s.id, name: "backfilled", kind: "baseline", mode: "slope", pointCodes: ["A", "B"], referenceEpochId: ref } });
+    const later = await addEpochs(s, Array.from({ length: 6 }, (_, k) => ({ time: hoursAfter(T0, 6 * (6 - k)), points: { A: { east: 0, north: 0 }, B: { east: 10, north: 0 } } })));
+    const epochs = await db.epoch.findMany({ where: { id: { in: [ref, ...later] } }, select: { id: true, time: true } });
+    const byId = new Map(epochs.map((e) => [e.id, e.time]));
+    // Value k·1e-4 at hour 6k (hand-computed), written in decreasing time.
+    for (const epochId of [...later, ref]) {
+      const time = byId.get(epochId) as Date;
+      const k = (time.getTime() - Date.parse(T0)) / (6 * 3600_000);
+      await db.elementResult.create({ data: { elementId: el.id, epochId, referenceEpochId: ref, time, status: "ok", engineering: k * 1e-4, sigmaEngineering: 2e-4 } });
+    }
+    const v = await sessionFor(s.id, "viewer");
+    const cum = await call(series.GET, { method: "GET", path: "/x", params: { slug: s.slug, id: String(el.id) }, cookie: v, query: { quantity: "engineering" } });
+    const pts = cum.json.points as Pt[];
+    expect(pts.map((p) => p.t)).toEqual(Array.from({ length: 7 }, (_, k) => hoursAfter(T0, 6 * k)));
+    pts.forEach((p, k) => expect(p.value).toBeCloseTo(k * 1e-4, 12));
+    const rate = await call(series.GET, { method: "GET", path: "/x", params: { slug: s.slug, id: String(el.id) }, cookie: v, query: { quantity: "engineering", mode: "rate" } });
+    // 1e-4 every 6 h = 4e-4 per day between each pair of neighbours in time.
+    (rate.json.points as Pt[]).forEach((p) => expect(p.value).toBeCloseTo(4e-4, 12));
+  });
+
+  it("decodes PostgreSQL's own timestamptz_send and float8send strings back to the same instants and values", async () => {
+    const times = ["1999-12-31T23:59:59.999Z", "2000-01-01T00:00:00.000Z", "2026-03-29T01:00:00.001Z", "2107-06-30T12:34:56.789Z"];
+    const values = [0, -1.5e-4, Math.PI, 5e-324];
+    const [row] = await getDb().$queryRawUnsafe<{ t: Uint8Array; v: Uint8Array }[]>(
+      `SELECT string_agg(timestamptz_send(t), ''::bytea ORDER BY k) AS t, string_agg(float8send(v), ''::bytea ORDER BY k) AS v
+         FROM unnest($1::timestamptz[], $2::float8[]) WITH ORDINALITY AS u(t, v, k)`,
+      times,
+      values,
+    );
+    expect(Array.from(decodePgTimestampsMs(row.t, 4))).toEqual(times.map((t) => Date.parse(t)));
+    expect(Array.from(decodeFloat8BE(row.v, 4))).toEqual(values);
   });
 
   it("reads the series against the element's new reference after re-baselining", async () => {
