@@ -33,6 +33,7 @@ import { ingestEpochs } from "../../lib/server/ingest/service.ts";
 import { closeIngestPools } from "../../lib/server/ingest/pg-tx.ts";
 import { parseEpochCsvInput } from "../../lib/server/ingest/csv-input.ts";
 import { triangulatePlan } from "../../lib/network/triangulate.ts";
+import { mulberry32 } from "../../seed/random.ts";
 
 const args = process.argv.slice(2);
 const opt = (name: string): string | undefined => {
@@ -62,16 +63,6 @@ const LIVE_POINTS = Number(opt("--live-points") ?? 2000);
 const T0 = Date.UTC(2023, 0, 1);
 const STEP_MS = 15 * 60_000;
 
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function withDatabase(url: string, name: string): string {
   const u = new URL(url);

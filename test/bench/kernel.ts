@@ -15,6 +15,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { computeTriangleBatch, createTriangleBatchOut } from "../../lib/strain/batch.ts";
+import { mulberry32 } from "../../seed/random.ts";
 
 const N_TRI = 1000;
 const N_EP = 1000;
@@ -25,17 +26,6 @@ const asJson = args.includes("--json");
 const runsArg = args.indexOf("--runs");
 const RUNS = runsArg >= 0 ? Number(args[runsArg + 1]) : 7;
 
-/** mulberry32 (T. Ettinger, public domain): small, seeded, good enough for test data. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function makeData(): { refXY: Float64Array; curXY: Float64Array; sigmaRef: Float64Array; sigmaCur: Float64Array } {
   const rnd = mulberry32(SEED);

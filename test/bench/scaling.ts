@@ -17,6 +17,7 @@
 import { spawnSync } from "node:child_process";
 import { loadavg } from "node:os";
 import { computeTriangleBatch, createTriangleBatchOut } from "../../lib/strain/batch.ts";
+import { mulberry32 } from "../../seed/random.ts";
 
 const argv = process.argv.slice(2);
 const long = argv.includes("--long");
@@ -32,16 +33,6 @@ const say = (m: string): void => {
 type Row = { what: string; size: number; unit: string; figure: number; figureUnit: string; perItem: number; load: number; note?: string };
 const rows: Row[] = [];
 
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import { atan2Fast, atanTiny, atanUnit } from "../../../lib/strain/atan2.ts";
+import { mulberry32 } from "../../../seed/random.ts";
 
 // Reference: Math.atan / Math.atan2 (V8's port of fdlibm, within 1 ulp), and exact angles from
 // tan(π/4) = 1, tan(π/6) = 1/√3, tan(π/8) = √2 − 1, tan(π/12) = 2 − √3.
@@ -11,17 +12,6 @@ function angleDiff(a: number, b: number): number {
   return d > Math.PI ? 2 * Math.PI - d : d;
 }
 
-/** mulberry32 (T. Ettinger, public domain): seeded inputs for the dense sweeps. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 describe("atanUnit (minimax rational on [−1, 1])", () => {
   it("equals Math.atan to 1e-15 relative over 200,000 seeded arguments in [−1, 1], at all scales", () => {

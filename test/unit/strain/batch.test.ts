@@ -1,21 +1,12 @@
 import { describe, expect, it } from "vitest";
 import { BATCH_DEGENERATE, BATCH_NON_FINITE, BATCH_OK, computeTriangleBatch, computeTriangleStrain, createTriangleBatchOut } from "../../../lib/strain/index.ts";
 import type { SurveyPoint } from "../../../lib/strain/types.ts";
+import { mulberry32 } from "../../../seed/random.ts";
 
 /** Same formulas, two code paths: agreement to 1e-12 relative (1e-15 absolute near zero). */
 const AGREE_REL = 1e-12;
 const AGREE_ABS = 1e-15;
 
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function close(a: number, b: number, rel = AGREE_REL, abs = AGREE_ABS): boolean {
   return Math.abs(a - b) <= rel * Math.max(Math.abs(a), Math.abs(b)) + abs;
