@@ -15,7 +15,8 @@ import { Prisma } from "./db/generated/client.ts";
 import type { Db } from "./db/client.ts";
 import type { SiteRow } from "./http/route.ts";
 import { AppError } from "./errors.ts";
-import { pgQuery } from "./ingest/pg-tx.ts";
+import { pgCopyOut, pgQuery } from "./ingest/pg-tx.ts";
+import { parseCopyBinary, readInt4 } from "../formats/pg-copy-binary.ts";
 import { incrementalSeries, isSignificant, rateSeries, type SeriesArrays } from "../series/increments.ts";
 import { downsampleIndices } from "../series/lttb.ts";
 import { localIsoTimes } from "../series/local-time.ts";
@@ -64,47 +65,70 @@ export interface SeriesResponse {
   points: SeriesPoint[];
 }
 
-type Packed = { n: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8Array | null; skipped: number };
+/** The packed read: counts, the three byte strings, and the reference epoch's time (null when it has no row). */
+type Packed = { n: number; t: Uint8Array | null; v: Uint8Array | null; s: Uint8Array | null; skipped: number; refTime: Uint8Array | null };
 
 /**
  * Rows of an element against one reference at the site's current epoch revisions. Superseded
  * revisions are few; the hashed sub-plan over them (index on (siteId, isCurrent, time)) costs less
- * than joining every result row to its epoch. `$1` is the element, `$2` the reference.
+ * than joining every result row to its epoch. `el` and `ref` are the element and reference: SQL
+ * text, placeholders for a parameterised query or checked literals for COPY.
  */
-const CURRENT_ROWS = `r."elementId" = $1 AND r."referenceEpochId" = $2
-  AND r."epochId" NOT IN (SELECT e.id FROM "Epoch" e WHERE e."siteId" = (SELECT el."siteId" FROM "Element" el WHERE el.id = $1) AND NOT e."isCurrent")`;
+function currentRows(el: string, ref: string): string {
+  return `r."elementId" = ${el} AND r."referenceEpochId" = ${ref}
+  AND r."epochId" NOT IN (SELECT e.id FROM "Epoch" e WHERE e."siteId" = (SELECT el."siteId" FROM "Element" el WHERE el.id = ${el}) AND NOT e."isCurrent")`;
+}
+
+/** An id as an SQL literal (COPY takes no parameters). */
+function idLiteral(id: number): string {
+  if (!Number.isSafeInteger(id)) throw new TypeError(`series read: id ${id} is not an integer`);
+  return String(id);
+}
+
+/** An instant as an SQL literal: toISOString writes only digits, "-", ":", ".", "T" and "Z". */
+function timeLiteral(d: Date): string {
+  return `'${d.toISOString()}'::timestamptz`;
+}
 
 /**
  * One row: n, skipped, and the times, values and σ as packed byte strings, through the plain `pg`
- * pool (lib/server/ingest/pg-tx.ts) rather than Prisma, whose raw path copies and decodes the three
- * quarter-megabyte strings slowly. Measured on a year of 15-minute epochs (test/bench/series.ts,
- * EXPLAIN ANALYZE and backend CPU time), what the read costs and what this query avoids:
- * - times go out as timestamptz_send (the stored int64 µs, a copy) and are converted in Node:
- *   `extract(epoch …)` returns numeric, and numeric arithmetic per row was a third of the query;
- * - no ORDER BY: sorting 35,040 rows was another third. The aggregates all advance on the same input
+ * pool (lib/server/ingest/pg-tx.ts) as binary COPY. Measured on a year of 15-minute epochs
+ * (test/bench/series.ts, EXPLAIN ANALYZE, backend CPU time and perf), what the read costs and what
+ * this query avoids:
+ * - Prisma's raw path, which copies and decodes the three quarter-megabyte strings slowly;
+ * - hex text: as an ordinary result a bytea goes out as hex that PostgreSQL writes and pg turns
+ *   into a string and back into bytes (about 12 ms of Node.js CPU per year of epochs); binary COPY
+ *   hands over the bytes as they are;
+ * - `extract(epoch …)`, which returns numeric: numeric arithmetic per row was a third of the
+ *   query; times go out as timestamptz_send (the stored int64 µs) and are converted in Node;
+ * - ORDER BY: sorting 35,040 rows was another third. The aggregates all advance on the same input
  *   row, so the three strings stay aligned whatever the scan order, and the scan order is the
  *   insertion order, which live ingest writes in time order; `decodePacked` checks the order and
  *   sorts only when it is not (a back-filled site; lib/series/packed.ts). Times are unique here
  *   (one current revision per site and time, index "Epoch_one_current"): no tie-break is needed.
+ * What remains on the server is mostly copying and first-touching the large strings. The same row
+ * carries the reference epoch's time, which saves the series a round trip of its own.
  */
 async function readPacked(elementId: number, refId: number, q: { value: string; sigma: string | null }, from: Date | null, to: Date | null): Promise<Packed> {
   const v = `r."${q.value}"`;
   const s = q.sigma ? `coalesce(r."${q.sigma}", 'NaN'::float8)` : `'NaN'::float8`;
-  const params: unknown[] = [elementId, refId];
-  const lo = from ? `AND r."time" >= $${params.push(from)}::timestamptz` : "";
-  const hi = to ? `AND r."time" <= $${params.push(to)}::timestamptz` : "";
-  const rows = await pgQuery<Packed>(
-    `SELECT (count(*) FILTER (WHERE ok))::int AS n,
-            (count(*) FILTER (WHERE NOT ok))::int AS skipped,
-            string_agg(timestamptz_send(tm), ''::bytea) FILTER (WHERE ok) AS t,
-            string_agg(float8send(val), ''::bytea) FILTER (WHERE ok) AS v,
-            string_agg(float8send(sig), ''::bytea) FILTER (WHERE ok) AS s
-       FROM (SELECT r."time" AS tm, ${v} AS val, ${s} AS sig, (r.status = 'ok' AND ${v} IS NOT NULL) AS ok
-               FROM "ElementResult" r
-              WHERE ${CURRENT_ROWS} ${lo} ${hi}) x`,
-    params,
+  const lo = from ? `AND r."time" >= ${timeLiteral(from)}` : "";
+  const hi = to ? `AND r."time" <= ${timeLiteral(to)}` : "";
+  const bytes = await pgCopyOut(
+    `COPY (SELECT (count(*) FILTER (WHERE ok))::int AS n,
+                  (count(*) FILTER (WHERE NOT ok))::int AS skipped,
+                  string_agg(timestamptz_send(tm), ''::bytea) FILTER (WHERE ok) AS t,
+                  string_agg(float8send(val), ''::bytea) FILTER (WHERE ok) AS v,
+                  string_agg(float8send(sig), ''::bytea) FILTER (WHERE ok) AS s,
+                  (SELECT timestamptz_send(e."time") FROM "Epoch" e WHERE e.id = ${idLiteral(refId)}) AS ref
+             FROM (SELECT r."time" AS tm, ${v} AS val, ${s} AS sig, (r.status = 'ok' AND ${v} IS NOT NULL) AS ok
+                     FROM "ElementResult" r
+                    WHERE ${currentRows(idLiteral(elementId), idLiteral(refId))} ${lo} ${hi}) x) TO STDOUT (FORMAT binary)`,
   );
-  return rows[0];
+  const rows = parseCopyBinary(bytes);
+  const [n, skipped, t, vs, ss, ref] = rows.length === 1 && rows[0].length === 6 ? rows[0] : [];
+  if (!n || !skipped) throw new Error("series read: expected one row of six fields");
+  return { n: readInt4(n), skipped: readInt4(skipped), t: t ?? null, v: vs ?? null, s: ss ?? null, refTime: ref ?? null };
 }
 
 function decodePacked(p: Packed): SeriesArrays {
@@ -118,7 +142,7 @@ async function readBefore(elementId: number, refId: number, q: { value: string; 
   const rows = await pgQuery<{ tm: number; val: number; sig: number | null }>(
     `SELECT (extract(epoch FROM r."time") * 1000)::float8 AS tm, ${v} AS val, ${s} AS sig
        FROM "ElementResult" r
-      WHERE ${CURRENT_ROWS} AND r."time" < $3::timestamptz AND r.status = 'ok' AND ${v} IS NOT NULL
+      WHERE ${currentRows("$1", "$2")} AND r."time" < $3::timestamptz AND r.status = 'ok' AND ${v} IS NOT NULL
       ORDER BY r."time" DESC, r."epochId" DESC LIMIT 1`,
     [elementId, refId, from],
   );
@@ -185,15 +209,14 @@ export async function elementSeries(db: Db, site: SiteRow, elementId: number, qu
   const unit = query.mode === "rate" ? `${q.unit}/day` : q.unit;
   if (refId === null)
     return { element: elementHead, quantity: query.quantity, mode: query.mode, unit, timeZone: site.timeZone, referenceEpoch: null, count: 0, skipped: 0, downsampled: false, method: null, significanceK: SIGNIFICANCE_K, note: null, points: [] };
-  const [refEpoch, arrays] = await Promise.all([
-    db.epoch.findUnique({ where: { id: refId }, select: { id: true, time: true } }),
-    readElementArrays(db, el.id, refId, query.quantity, query.from ?? null, query.to ?? null),
+  // An increment at `from` needs the value before it: read it beside the range.
+  const [packed, prev] = await Promise.all([
+    readPacked(el.id, refId, q, query.from ?? null, query.to ?? null),
+    query.mode !== "cumulative" && query.from ? readBefore(el.id, refId, q, query.from) : null,
   ]);
-  let base: SeriesArrays = arrays;
-  if (query.mode !== "cumulative" && query.from) {
-    const prev = await readBefore(el.id, refId, q, query.from);
-    if (prev) base = prepend(arrays, prev);
-  }
+  const arrays = { ...decodePacked(packed), skipped: packed.skipped };
+  const refTimeMs = packed.refTime ? decodePgTimestampsMs(packed.refTime, 1)[0] : null;
+  const base: SeriesArrays = prev ? prepend(arrays, prev) : arrays;
   const s = view(base, query.mode);
   const { points, downsampled } = format(s, query.maxPoints, site.timeZone, q.sigma !== null);
   return {
@@ -202,7 +225,7 @@ export async function elementSeries(db: Db, site: SiteRow, elementId: number, qu
     mode: query.mode,
     unit,
     timeZone: site.timeZone,
-    referenceEpoch: refEpoch ? { id: refEpoch.id, time: refEpoch.time.toISOString() } : null,
+    referenceEpoch: refTimeMs === null ? null : { id: refId, time: new Date(refTimeMs).toISOString() },
     count: s.tMs.length,
     skipped: arrays.skipped,
     downsampled,

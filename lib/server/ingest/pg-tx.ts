@@ -71,6 +71,38 @@ export async function pgQuery<R>(text: string, values?: readonly unknown[]): Pro
   return (await pool(databaseUrl()).query(text, values as unknown[] | undefined)).rows as R[];
 }
 
+/** Collects the CopyData messages of a `COPY … TO STDOUT` (pg's Query discards them). */
+class CopyOutQuery extends pg.Query {
+  readonly chunks: Buffer[] = [];
+  handleCopyData(msg: { chunk: Buffer }): void {
+    // The chunk is a view into the protocol parser's buffer, which later messages may overwrite.
+    this.chunks.push(Buffer.from(msg.chunk));
+  }
+}
+
+/**
+ * The output of one `COPY (…) TO STDOUT` statement on the same pool, as one byte string. With
+ * `(FORMAT binary)` large byte strings arrive as they are: no hex text for PostgreSQL to write and
+ * for pg to decode (see lib/formats/pg-copy-binary.ts). COPY takes no parameters: the caller puts
+ * only checked literals into `text`.
+ */
+export async function pgCopyOut(text: string): Promise<Uint8Array> {
+  const client = await pool(databaseUrl()).connect();
+  let broken = false;
+  try {
+    const chunks = await new Promise<Buffer[]>((resolve, reject) => {
+      const q: CopyOutQuery = new CopyOutQuery(text, (err: Error | undefined) => (err ? reject(err) : resolve(q.chunks)));
+      client.query(q);
+    });
+    return chunks.length === 1 ? chunks[0] : Buffer.concat(chunks);
+  } catch (err) {
+    broken = !(err instanceof pg.DatabaseError);
+    throw err;
+  } finally {
+    client.release(broken);
+  }
+}
+
 /** Closes the pools of this process (tests, shutdown). */
 export async function closeIngestPools(): Promise<void> {
   const h = globalThis as Holder;

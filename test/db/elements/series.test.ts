@@ -5,6 +5,8 @@ import * as series from "../../../app/api/v1/sites/[slug]/elements/[id]/series/r
 import * as trend from "../../../app/api/v1/sites/[slug]/elements/[id]/trend/route.ts";
 import * as pointSeries from "../../../app/api/v1/sites/[slug]/points/[code]/series/route.ts";
 import { decodeFloat8BE, decodePgTimestampsMs } from "../../../lib/series/packed.ts";
+import { parseCopyBinary, readInt4 } from "../../../lib/formats/pg-copy-binary.ts";
+import { pgCopyOut } from "../../../lib/server/ingest/pg-tx.ts";
 import { addEpochs, call, hoursAfter, makeSite, sessionFor, SIGMA_H } from "./fixtures.ts";
 
 const T0 = "2026-03-01T00:00:00.000Z";
@@ -159,17 +161,22 @@ describe("GET /api/v1/sites/{slug}/elements/{id}/series", () => {
     (rate.json.points as Pt[]).forEach((p) => expect(p.value).toBeCloseTo(4e-4, 12));
   });
 
-  it("decodes PostgreSQL's own timestamptz_send and float8send strings back to the same instants and values", async () => {
+  it("decodes PostgreSQL's own binary COPY of int4, NULL, timestamptz_send and float8send back to the same numbers and instants", async () => {
     const times = ["1999-12-31T23:59:59.999Z", "2000-01-01T00:00:00.000Z", "2026-03-29T01:00:00.001Z", "2107-06-30T12:34:56.789Z"];
     const values = [0, -1.5e-4, Math.PI, 5e-324];
-    const [row] = await getDb().$queryRawUnsafe<{ t: Uint8Array; v: Uint8Array }[]>(
-      `SELECT string_agg(timestamptz_send(t), ''::bytea ORDER BY k) AS t, string_agg(float8send(v), ''::bytea ORDER BY k) AS v
-         FROM unnest($1::timestamptz[], $2::float8[]) WITH ORDINALITY AS u(t, v, k)`,
-      times,
-      values,
+    const tArr = `ARRAY[${times.map((t) => `'${t}'::timestamptz`).join(", ")}]`;
+    const vArr = `ARRAY[${values.map((v) => `${v.toPrecision(17)}::float8`).join(", ")}]`;
+    const bytes = await pgCopyOut(
+      `COPY (SELECT (-35040)::int AS n, NULL::bytea AS nothing, string_agg(timestamptz_send(t), ''::bytea ORDER BY k) AS t, string_agg(float8send(v), ''::bytea ORDER BY k) AS v
+               FROM unnest(${tArr}, ${vArr}) WITH ORDINALITY AS u(t, v, k)) TO STDOUT (FORMAT binary)`,
     );
-    expect(Array.from(decodePgTimestampsMs(row.t, 4))).toEqual(times.map((t) => Date.parse(t)));
-    expect(Array.from(decodeFloat8BE(row.v, 4))).toEqual(values);
+    const rows = parseCopyBinary(bytes);
+    expect(rows).toHaveLength(1);
+    const [n, nothing, t, v] = rows[0];
+    expect(readInt4(n!)).toBe(-35040);
+    expect(nothing).toBeNull();
+    expect(Array.from(decodePgTimestampsMs(t, 4))).toEqual(times.map((x) => Date.parse(x)));
+    expect(Array.from(decodeFloat8BE(v, 4))).toEqual(values);
   });
 
   it("reads the series against the element's new reference after re-baselining", async () => {
