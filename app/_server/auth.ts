@@ -7,6 +7,7 @@
  *   const { site, role } = await requireSiteRole(slug, "read", `/sites/${slug}`);
  */
 import "server-only";
+import { cache } from "react";
 import { cookies, headers } from "next/headers";
 import { notFound, redirect } from "next/navigation";
 import { userFromSessionSecret, roleOnSite, type Actor, type SiteRow } from "@/lib/server/http/route.ts";
@@ -27,10 +28,11 @@ export async function sessionSecret(): Promise<string | null> {
   return (await cookies()).get(SESSION_COOKIE)?.value ?? null;
 }
 
-/** The signed-in user, or null. */
-export async function currentUser(): Promise<PageUser | null> {
-  return userFromSessionSecret(await sessionSecret());
-}
+/**
+ * The signed-in user, or null. Asked once per request (React's per-request cache): the top bar,
+ * the site layout and the page all need it.
+ */
+export const currentUser = cache(async (): Promise<PageUser | null> => userFromSessionSecret(await sessionSecret()));
 
 /** The signed-in user; otherwise redirects to /sign-in?next=<next>. */
 export async function requireUser(next = "/"): Promise<PageUser> {
@@ -46,6 +48,14 @@ export async function requireAdmin(next = "/admin"): Promise<PageUser> {
   return u;
 }
 
+/** The site and the user's role on it (null when either is missing), once per request: the site layout and its page both ask. */
+const siteAndRoleOnce = cache(async (slug: string, user: PageUser): Promise<{ site: SiteRow; role: Role } | null> => {
+  const site = await getDb().site.findUnique({ where: { slug }, select: { id: true, slug: true, name: true, timeZone: true } });
+  if (!site) return null;
+  const role = await roleOnSite(user, site.id);
+  return role ? { site, role } : null;
+});
+
 /**
  * The site and the user's role on it, when the role allows `permission`. A site the user has
  * no role on is answered as not found (its existence is not revealed); a role too low for the
@@ -53,10 +63,9 @@ export async function requireAdmin(next = "/admin"): Promise<PageUser> {
  */
 export async function requireSiteRole(slug: string, permission: Permission, next = `/sites/${slug}`): Promise<{ user: PageUser; site: SiteRow; role: Role }> {
   const user = await requireUser(next);
-  const site = await getDb().site.findUnique({ where: { slug }, select: { id: true, slug: true, name: true, timeZone: true } });
-  if (!site) notFound();
-  const role = await roleOnSite(user, site.id);
-  if (!role) notFound();
+  const found = await siteAndRoleOnce(slug, user);
+  if (!found) notFound();
+  const { site, role } = found;
   if (!roleAllows(role, permission)) redirect(`/account/denied?need=${encodeURIComponent(permission)}&site=${encodeURIComponent(slug)}&from=${encodeURIComponent(safeNext(next))}`);
   return { user, site, role };
 }

@@ -8,3 +8,4 @@ export * from "./quantities.ts";
 export * from "./field.ts";
 export * from "./hull.ts";
 export * from "./time.ts";
+export * from "./wire.ts";

@@ -17,6 +17,7 @@ import {
   QUANTITY_INFO,
   PLAN_QUANTITIES,
   zoomView,
+  decodePlanData,
   unpackField,
   type PackedField,
   type PlanQuantity,
@@ -28,37 +29,30 @@ import { EpochScrubber } from "./EpochScrubber.tsx";
 import { PlanTooltip } from "./PlanTooltip.tsx";
 import { ElementsLayer, GlyphLayer, NorthArrow, PointsLayer, VectorLayer } from "./planLayers.tsx";
 import { defaultExaggeration, EXAGGERATIONS, median, MIN_GLYPH_ELEMENT_PX, PLAY_STEP_MS, robustMax } from "./planScale.ts";
-import type { PlanElementProp, PlanElementWire, PlanPointProp, Shape } from "./planTypes.ts";
+import type { PlanPointProp, Shape } from "./planTypes.ts";
 import { usePlanView } from "./usePlanView.ts";
 
-export type { PlanElementProp, PlanElementWire, PlanPointProp } from "./planTypes.ts";
+export type { PlanElementProp, PlanPointProp } from "./planTypes.ts";
 
 export interface SitePlanProps {
   slug: string;
   timeZone: string;
-  points: PlanPointProp[];
-  elements: PlanElementWire[];
+  /**
+   * Points, elements, epochs and the first field as one string (encodePlanData, lib/plan/wire.ts).
+   * Points' east/north are relative to a local origin (the page subtracts it; see page.tsx).
+   */
+  data: string;
   /** Preformatted times (key: UTC ms) for the first render, so the browser needs no time-zone data until the user scrubs. */
   timeLabels?: Record<string, string>;
-  epochIds: number[];
-  epochTimesMs: number[];
   referenceEpochId: number | null;
-  /** Points' east/north are relative to a local origin (the page subtracts it; see page.tsx). */
-  initialField: PackedField | null;
   initialQuantity?: PlanQuantity;
   initialUnit?: StrainUnit;
 }
 
 export function SitePlan(props: SitePlanProps) {
-  const { slug, timeZone, points, epochIds, epochTimesMs, referenceEpochId, timeLabels } = props;
-  const elements = useMemo<PlanElementProp[]>(
-    () =>
-      props.elements.map((e) => {
-        const pointCodes = e.p.map((i) => points[i]?.code).filter((c): c is string => c !== undefined);
-        return { id: e.id, name: e.n ?? pointCodes.join("-"), kind: e.k, mode: e.m, pointCodes };
-      }),
-    [props.elements, points],
-  );
+  const { slug, timeZone, referenceEpochId, timeLabels } = props;
+  const data = useMemo(() => decodePlanData(props.data), [props.data]);
+  const { points, elements, epochIds, epochTimesMs } = data;
   const fmtTime = useCallback((ms: number) => timeLabels?.[String(ms)] ?? formatSiteTime(ms, timeZone), [timeLabels, timeZone]);
   const [quantity, setQuantity] = useState<PlanQuantity>(props.initialQuantity ?? "greenMax");
   const [unit, setUnit] = useState<StrainUnit>(props.initialUnit ?? "ue");
@@ -69,7 +63,7 @@ export function SitePlan(props: SitePlanProps) {
   const [lockScale, setLockScale] = useState(false);
   const [lockedMax, setLockedMax] = useState<number | null>(null);
 
-  const initialField = useMemo(() => (props.initialField ? unpackField(props.initialField) : null), [props.initialField]);
+  const initialField = data.field;
   const lastIndex = epochIds.length - 1;
   const initialIndex = initialField ? Math.max(0, epochIds.indexOf(initialField.epoch.id)) : lastIndex;
   const [index, setIndex] = useState(initialIndex);

@@ -22,83 +22,61 @@ export function NorthArrow({ view, upp }: { view: ViewBox; upp: number }) {
 /** Number for SVG path data: millimetres are plenty for a plan in metres about a local origin. */
 const f3 = (v: number) => (Math.round(v * 1000) / 1000).toString();
 
-export const ElementsLayer = memo(function ElementsLayer(p: {
-  shapes: Shape[];
-  valueById: Map<number, FieldElement>;
-  quantity: PlanQuantity;
-  k: number;
-  domainMax: number;
-  upp: number;
-  showMarkers: boolean;
-}) {
+/** Attribute text for markup built by hand (the values here are colours and fixed words, escaped all the same). */
+const attr = (v: string) => v.replace(/&/g, "&amp;").replace(/"/g, "&quot;").replace(/</g, "&lt;");
+
+/**
+ * One polygon (or line) per element for its colour, hover and click; the hatching of every
+ * contracting element is one path, so the drawing stays light on sites with a thousand elements.
+ * The layer's markup is built as one string and set in one go: a thousand elements made one by one
+ * through React cost far more script time (on every load and every epoch step) than the browser
+ * takes to parse them. Hover and click work by delegation on `data-element` (usePlanView).
+ */
+export function elementsMarkup(p: { shapes: Shape[]; valueById: Map<number, FieldElement>; quantity: PlanQuantity; k: number; domainMax: number; upp: number; showMarkers: boolean }): string {
   const info = QUANTITY_INFO[p.quantity];
-  // One polygon (or line) per element for its colour, hover and click; the hatching of every
-  // contracting element is one path, so the drawing stays light on sites with a thousand elements.
   let hatch = "";
-  const markers: React.ReactNode[] = [];
-  const items = p.shapes.map((s) => {
+  let markers = "";
+  let items = "";
+  for (const s of p.shapes) {
     const fe = p.valueById.get(s.el.id);
     const qv = fe ? quantityValue(fe, s.el.kind, p.quantity, p.k) : null;
     const value = qv?.value ?? null;
-    const fill = colourForValue(value, p.domainMax, info.signed || qv?.axial === true);
+    const colour = colourForValue(value, p.domainMax, info.signed || qv?.axial === true);
+    const fill = attr(colour);
     const faded = qv?.significant === false;
     const sense = value === null || (!info.signed && !qv?.axial) ? null : value > 0 ? "+" : value < 0 ? "−" : null;
-    const common = {
-      "data-element": s.el.id,
-      "data-sign": sense === "+" ? "extension" : sense === "−" ? "contraction" : "none",
-      "data-significant": qv?.significant === null || qv === null ? "unknown" : String(qv.significant),
-      "data-fill": fill,
-    };
+    const common = `data-element="${s.el.id}" data-sign="${sense === "+" ? "extension" : sense === "−" ? "contraction" : "none"}" data-significant="${qv?.significant === null || qv === null ? "unknown" : String(qv.significant)}" data-fill="${fill}"`;
     if (s.kind === "polygon") {
-      if (sense === "−") hatch += "M" + s.pts.map((q) => `${f3(q.x)} ${f3(q.y)}`).join("L") + "Z";
+      let pts = "";
+      let d = "";
+      for (const q of s.pts) {
+        const x = f3(q.x);
+        const y = f3(q.y);
+        pts += (pts ? " " : "") + x + "," + y;
+        d += (d ? "L" : "M") + x + " " + y;
+      }
+      if (sense === "−") hatch += d + "Z";
       const markerSize = Math.min(14 * p.upp, s.sizeM * 0.35);
       if (p.showMarkers && sense && markerSize > 3 * p.upp)
-        markers.push(
-          <text key={s.el.id} x={s.c.x} y={s.c.y} fontSize={markerSize * 1.4} textAnchor="middle" dominantBaseline="central" fill={inkOn(fill)} fontWeight={700}>
-            {sense}
-          </text>,
-        );
-      return (
-        <polygon
-          key={s.el.id}
-          points={s.pts.map((q) => `${f3(q.x)},${f3(q.y)}`).join(" ")}
-          fill={fill}
-          fillOpacity={faded ? 0.38 : 1}
-          stroke="#4a5560"
-          strokeOpacity={faded ? 0.5 : 1}
-          strokeWidth={0.8}
-          vectorEffect="non-scaling-stroke"
-          {...common}
-          className={faded ? "el faded" : "el"}
-        />
-      );
+        markers += `<text x="${s.c.x}" y="${s.c.y}" font-size="${markerSize * 1.4}" text-anchor="middle" dominant-baseline="central" fill="${attr(inkOn(colour))}" font-weight="700">${sense}</text>`;
+      items += `<polygon points="${pts}" fill="${fill}" fill-opacity="${faded ? 0.38 : 1}" stroke="#4a5560" stroke-opacity="${faded ? 0.5 : 1}" stroke-width="0.8" vector-effect="non-scaling-stroke" ${common} class="${faded ? "el faded" : "el"}"/>`;
+    } else {
+      const [a, b] = s.pts;
+      const xy = `x1="${a.x}" y1="${a.y}" x2="${b.x}" y2="${b.y}"`;
+      items +=
+        `<g opacity="${faded ? 0.45 : 1}">` +
+        `<line ${xy} stroke="#1f2a33" stroke-width="9" vector-effect="non-scaling-stroke" stroke-linecap="round" pointer-events="none"/>` +
+        `<line ${xy} stroke="${fill}" stroke-width="6" vector-effect="non-scaling-stroke" stroke-linecap="round"${sense === "−" ? ' stroke-dasharray="6 4"' : ""} ${common} class="el"/>` +
+        `</g>`;
     }
-    return (
-      <g key={s.el.id} opacity={faded ? 0.45 : 1}>
-        <line x1={s.pts[0].x} y1={s.pts[0].y} x2={s.pts[1].x} y2={s.pts[1].y} stroke="#1f2a33" strokeWidth={9} vectorEffect="non-scaling-stroke" strokeLinecap="round" pointerEvents="none" />
-        <line
-          x1={s.pts[0].x}
-          y1={s.pts[0].y}
-          x2={s.pts[1].x}
-          y2={s.pts[1].y}
-          stroke={fill}
-          strokeWidth={6}
-          vectorEffect="non-scaling-stroke"
-          strokeLinecap="round"
-          strokeDasharray={sense === "−" ? "6 4" : undefined}
-          {...common}
-          className="el"
-        />
-      </g>
-    );
-  });
-  return (
-    <g className="elements">
-      {items}
-      {hatch ? <path d={hatch} fill="url(#hatch-contraction)" pointerEvents="none" className="hatch" /> : null}
-      {markers.length ? <g pointerEvents="none">{markers}</g> : null}
-    </g>
-  );
+  }
+  if (hatch) items += `<path d="${hatch}" fill="url(#hatch-contraction)" pointer-events="none" class="hatch"/>`;
+  if (markers) items += `<g pointer-events="none">${markers}</g>`;
+  return items;
+}
+
+export const ElementsLayer = memo(function ElementsLayer(p: Parameters<typeof elementsMarkup>[0]) {
+  return <g className="elements" dangerouslySetInnerHTML={{ __html: elementsMarkup(p) }} />;
 });
 
 export const GlyphLayer = memo(function GlyphLayer(p: { shapes: Shape[]; valueById: Map<number, FieldElement>; scale: number; upp: number }) {

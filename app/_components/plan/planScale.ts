@@ -8,9 +8,13 @@ export const PLAY_STEP_MS = 700;
 
 /** Robust maximum: the 98th percentile of magnitudes, so one wild element does not wash the plan out. */
 export function robustMax(values: number[]): number {
-  const a = values.filter((v) => Number.isFinite(v)).map(Math.abs).sort((x, y) => x - y);
-  if (a.length === 0) return 0;
-  return a[Math.min(a.length - 1, Math.floor(a.length * 0.98))] || a[a.length - 1];
+  // A typed array sorts numerically without a comparator call per pair (this runs on every render of a new field).
+  const a = new Float64Array(values.length);
+  let n = 0;
+  for (const v of values) if (Number.isFinite(v)) a[n++] = Math.abs(v);
+  if (n === 0) return 0;
+  const sorted = a.subarray(0, n).sort();
+  return sorted[Math.min(n - 1, Math.floor(n * 0.98))] || sorted[n - 1];
 }
 
 /**

@@ -1,25 +1,8 @@
-/** Shared shapes of the site plan: the props the page sends and the drawable element shapes. */
-export interface PlanPointProp {
-  code: string;
-  east: number;
-  north: number;
-  isReference: boolean;
-}
-export interface PlanElementProp {
-  id: number;
-  name: string;
-  kind: string;
-  mode: string;
-  pointCodes: string[];
-}
-/** An element as the page sends it: point indices into `points`; name only when it is not the codes joined by "-". */
-export interface PlanElementWire {
-  id: number;
-  n?: string;
-  k: string;
-  m: string;
-  p: number[];
-}
+/** Shared shapes of the site plan: the points and elements the page sends (lib/plan/wire.ts) and the drawable element shapes. */
+import type { PlanElement, PlanPoint } from "@/lib/plan/wire.ts";
+
+export type PlanPointProp = PlanPoint;
+export type PlanElementProp = PlanElement;
 
 export type Shape = {
   el: PlanElementProp;

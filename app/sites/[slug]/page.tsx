@@ -5,7 +5,7 @@ import { requireSiteRole } from "@/app/_server/auth.ts";
 import { getPlanGeometry, listEpochs } from "@/lib/server/dashboard/site.ts";
 import { siteHeaderOnce } from "./site-data.ts";
 import { getStrainField } from "@/lib/server/dashboard/field.ts";
-import { formatSiteTime, isPlanQuantity, isStrainUnit, packField } from "@/lib/plan/index.ts";
+import { encodePlanData, formatSiteTime, isPlanQuantity, isStrainUnit } from "@/lib/plan/index.ts";
 import { SitePlan } from "@/app/_components/plan/SitePlan.tsx";
 import { TopElements } from "@/app/_components/plan/TopElements.tsx";
 
@@ -24,7 +24,7 @@ export default async function SitePage({ params, searchParams }: { params: Promi
   const [geometry, epochs, field] = await Promise.all([
     getPlanGeometry(site.id, refId),
     listEpochs(site.id),
-    header?.latest ? getStrainField(site.id, { epochId: header.latest.id }) : Promise.resolve(null),
+    header?.latest ? getStrainField(site.id, { epochId: header.latest.id }, { siteReferenceEpochId: refId }) : Promise.resolve(null),
   ]);
   // SVG works in single precision: draw about a local origin (whole metres near the centroid) so
   // grid coordinates of millions of metres keep millimetre detail; sent to 0.1 mm.
@@ -32,7 +32,6 @@ export default async function SitePage({ params, searchParams }: { params: Promi
   const originE = Math.round(geometry.points.reduce((s, p) => s + p.east, 0) / n);
   const originN = Math.round(geometry.points.reduce((s, p) => s + p.north, 0) / n);
   const r4 = (v: number) => Math.round(v * 1e4) / 1e4;
-  const indexOf = new Map(geometry.points.map((p, i) => [p.code, i]));
   // The times the first render shows (latest, previous, reference), formatted here on the site's clock.
   const timeLabels: Record<string, string> = {};
   for (const ms of [epochs.timesMs[epochs.timesMs.length - 1], epochs.timesMs[epochs.timesMs.length - 2], epochs.timesMs[0], header?.reference?.timeMs])
@@ -53,16 +52,15 @@ export default async function SitePage({ params, searchParams }: { params: Promi
         <SitePlan
           slug={site.slug}
           timeZone={site.timeZone}
-          points={geometry.points.map((p) => ({ code: p.code, east: r4(p.east - originE), north: r4(p.north - originN), isReference: p.isReference }))}
-          elements={geometry.elements.map((e) => {
-            const p = e.pointCodes.map((c) => indexOf.get(c) ?? -1).filter((i) => i >= 0);
-            return { id: e.id, ...(e.name === e.pointCodes.join("-") ? {} : { n: e.name }), k: e.kind, m: e.mode, p };
+          data={encodePlanData({
+            points: geometry.points.map((p) => ({ code: p.code, east: r4(p.east - originE), north: r4(p.north - originN), isReference: p.isReference })),
+            elements: geometry.elements.map((e) => ({ id: e.id, name: e.name, kind: e.kind, mode: e.mode, pointCodes: e.pointCodes })),
+            epochIds: epochs.ids,
+            epochTimesMs: epochs.timesMs,
+            field,
           })}
           timeLabels={timeLabels}
-          epochIds={epochs.ids}
-          epochTimesMs={epochs.timesMs}
           referenceEpochId={refId}
-          initialField={field ? packField(field) : null}
           initialQuantity={q}
           initialUnit={unit}
         />

@@ -3,7 +3,7 @@
  *
  * - cumulative (from = the reference epoch, or omitted): the stored ElementResult rows of the epoch
  *   against each element's reference, read in ONE query by the primary key (elementId,
- *   referenceEpochId, epochId), so it stays fast on sites with a long history;
+ *   referenceEpochId, time, epochId), so it stays fast on sites with a long history;
  * - increment (from = another epoch): the finite strain between the two epochs' coordinates,
  *   recomputed with computeElementStrain (the exact increment, not a difference of cumulative values).
  *
@@ -48,44 +48,66 @@ const fin = (v: number | null | undefined): number | null => (v === null || v ==
 
 type FieldElementRow = { id: number; kind: string; mode: string; pointCodes: string[]; referenceEpochId: number | null };
 
-/** `preloaded.elements`: the site's enabled elements when the caller has them already (saves a query). */
-export async function getStrainField(siteId: number, opts: { epochId: number; fromEpochId?: number | null; k?: number }, preloaded: { elements?: FieldElementRow[] } = {}): Promise<StrainField> {
+/**
+ * The stored cumulative results of the site's enabled elements at one epoch, each against its own
+ * reference (the site's when it has none), in one query by the full key (element, reference, the
+ * epoch's time, epoch).
+ */
+async function loadStoredField(siteId: number, epochId: number, siteRef: number): Promise<FieldElement[]> {
+  return getDb().$queryRawUnsafe<FieldElement[]>(
+    `SELECT r."elementId" AS id, r.status, r."greenMax", r."greenMin", r."maxShear", r."arealStrain", r."rotationDeg",
+            r."azimuthMaxDeg", r.engineering, r."sigmaGreenMax", r."sigmaGreenMin", r."sigmaMaxShear", r."sigmaArealStrain",
+            r."sigmaEngineering"
+       FROM "Element" e
+       JOIN "ElementResult" r ON r."elementId" = e.id AND r."referenceEpochId" = COALESCE(e."referenceEpochId", $2)
+        AND r."time" = (SELECT ep."time" FROM "Epoch" ep WHERE ep.id = $3) AND r."epochId" = $3
+      WHERE e."siteId" = $1 AND e."disabledAt" IS NULL`,
+    siteId,
+    siteRef,
+    epochId,
+  );
+}
+
+/**
+ * `preloaded`: what the caller has already read, to save queries: the site's reference epoch id
+ * (as referenceEpochIdOf gives it) and, for increments, the site's enabled elements.
+ */
+export async function getStrainField(
+  siteId: number,
+  opts: { epochId: number; fromEpochId?: number | null; k?: number },
+  preloaded: { siteReferenceEpochId?: number | null; elements?: FieldElementRow[] } = {},
+): Promise<StrainField> {
   const db = getDb();
   const k = opts.k ?? DEFAULT_K;
-  const site = await db.site.findUnique({ where: { id: siteId }, select: { referenceEpochId: true } });
-  if (!site) throw new AppError("not_found", "No such site.");
-  const siteRef = await referenceEpochIdOf(siteId, site.referenceEpochId);
+  let siteRef: number | null;
+  if (preloaded.siteReferenceEpochId !== undefined) siteRef = preloaded.siteReferenceEpochId;
+  else {
+    const site = await db.site.findUnique({ where: { id: siteId }, select: { referenceEpochId: true } });
+    if (!site) throw new AppError("not_found", "No such site.");
+    siteRef = await referenceEpochIdOf(siteId, site.referenceEpochId);
+  }
   const fromId = opts.fromEpochId ?? siteRef;
   if (fromId === null) throw new AppError("not_found", "The site has no epochs yet.");
-  const epochs = await db.epoch.findMany({ where: { siteId, id: { in: [opts.epochId, fromId] } }, select: { id: true, time: true } });
+  const mode = fromId === siteRef ? "cumulative" : "increment";
+  const ids = [...new Set([opts.epochId, fromId])];
+  // One round trip: the two epochs (checked to belong to the site before anything is returned), their observations and, when cumulative, the stored results.
+  const [epochs, obs, stored] = await Promise.all([
+    db.epoch.findMany({ where: { siteId, id: { in: ids } }, select: { id: true, time: true } }),
+    loadObservations(ids),
+    mode === "cumulative" ? loadStoredField(siteId, opts.epochId, fromId) : Promise.resolve(null),
+  ]);
   const epoch = epochs.find((e) => e.id === opts.epochId);
   const from = epochs.find((e) => e.id === fromId);
   if (!epoch) throw new AppError("not_found", `No epoch ${opts.epochId} on this site.`);
   if (!from) throw new AppError("not_found", `No epoch ${fromId} on this site.`);
-  const mode = fromId === siteRef ? "cumulative" : "increment";
-  const elements = preloaded.elements ?? (await db.element.findMany({ where: { siteId, disabledAt: null }, select: { id: true, kind: true, mode: true, pointCodes: true, referenceEpochId: true } }));
-  const obs = await loadObservations([...new Set([epoch.id, from.id])]);
-  const points = displacements(obs.get(from.id)!, obs.get(epoch.id)!);
+  const ref = obs.get(from.id)!;
+  const cur = obs.get(epoch.id)!;
+  const points = displacements(ref, cur);
 
   let out: FieldElement[];
-  if (mode === "cumulative") {
-    const ids = elements.map((e) => e.id);
-    const refs = elements.map((e) => e.referenceEpochId ?? (siteRef as number));
-    const rows = await db.$queryRawUnsafe<FieldElement[]>(
-      `SELECT r."elementId" AS id, r.status, r."greenMax", r."greenMin", r."maxShear", r."arealStrain", r."rotationDeg",
-              r."azimuthMaxDeg", r.engineering, r."sigmaGreenMax", r."sigmaGreenMin", r."sigmaMaxShear", r."sigmaArealStrain",
-              r."sigmaEngineering"
-         FROM unnest($1::int[], $2::int[]) AS k(eid, rid)
-         JOIN "ElementResult" r ON r."elementId" = k.eid AND r."referenceEpochId" = k.rid
-          AND r."time" = (SELECT e."time" FROM "Epoch" e WHERE e.id = $3) AND r."epochId" = $3`,
-      intList(ids),
-      intList(refs),
-      epoch.id,
-    );
-    out = rows;
-  } else {
-    const ref = obs.get(from.id)!;
-    const cur = obs.get(epoch.id)!;
+  if (stored) out = stored;
+  else {
+    const elements = preloaded.elements ?? (await db.element.findMany({ where: { siteId, disabledAt: null }, select: { id: true, kind: true, mode: true, pointCodes: true, referenceEpochId: true } }));
     out = elements.map((el) => {
       const { status, values } = storedValuesOf(computeElementStrain({ id: String(el.id), kind: el.kind as ElementKind, mode: el.mode as ElementMode, points: el.pointCodes }, ref, cur));
       return { id: el.id, status, ...values };

@@ -34,12 +34,16 @@ export async function getSiteHeader(siteId: number): Promise<SiteHeader | null> 
   const db = getDb();
   const site = await db.site.findUnique({ where: { id: siteId } });
   if (!site) return null;
-  const [refId, latest, epochCount] = await Promise.all([
-    referenceEpochIdOf(siteId, site.referenceEpochId),
-    db.epoch.findFirst({ where: { siteId, isCurrent: true }, orderBy: [{ time: "desc" }, { id: "desc" }], select: { id: true, time: true } }),
-    db.epoch.count({ where: { siteId, isCurrent: true } }),
+  const current = { siteId, isCurrent: true };
+  const epochRef = { id: true, time: true } as const;
+  // The reference as referenceEpochIdOf chooses it (explicit, else the first current epoch), read in the same round trip as the rest.
+  const [ref, latest, epochCount] = await Promise.all([
+    site.referenceEpochId
+      ? db.epoch.findUnique({ where: { id: site.referenceEpochId }, select: epochRef })
+      : db.epoch.findFirst({ where: current, orderBy: [{ time: "asc" }, { id: "asc" }], select: epochRef }),
+    db.epoch.findFirst({ where: current, orderBy: [{ time: "desc" }, { id: "desc" }], select: epochRef }),
+    db.epoch.count({ where: current }),
   ]);
-  const ref = refId ? await db.epoch.findUnique({ where: { id: refId }, select: { id: true, time: true } }) : null;
   return {
     id: site.id,
     slug: site.slug,
@@ -90,15 +94,13 @@ export interface PlanElement {
  */
 export async function getPlanGeometry(siteId: number, referenceEpochId: number | null): Promise<{ points: PlanPoint[]; elements: PlanElement[] }> {
   const db = getDb();
-  const [pts, elements] = await Promise.all([
+  const [pts, elements, obs] = await Promise.all([
     db.point.findMany({ where: { siteId }, select: { id: true, code: true, isReference: true, group: true, kind: true }, orderBy: { code: "asc" } }),
     db.element.findMany({ where: { siteId, disabledAt: null }, select: { id: true, name: true, label: true, kind: true, mode: true, pointCodes: true, referenceEpochId: true }, orderBy: { name: "asc" } }),
+    referenceEpochId ? db.observation.findMany({ where: { epochId: referenceEpochId }, select: { pointId: true, east: true, north: true, height: true } }) : Promise.resolve([]),
   ]);
   const pos = new Map<number, { east: number; north: number; height: number; atReference: boolean }>();
-  if (referenceEpochId) {
-    const obs = await db.observation.findMany({ where: { epochId: referenceEpochId }, select: { pointId: true, east: true, north: true, height: true } });
-    for (const o of obs) pos.set(o.pointId, { east: o.east, north: o.north, height: o.height, atReference: true });
-  }
+  for (const o of obs) pos.set(o.pointId, { east: o.east, north: o.north, height: o.height, atReference: true });
   const missing = pts.filter((p) => !pos.has(p.id)).map((p) => p.id);
   if (missing.length) {
     const rows = await db.$queryRawUnsafe<{ pointId: number; east: number; north: number; height: number }[]>(
