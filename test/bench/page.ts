@@ -11,6 +11,16 @@
  * Options: --keep leaves the database and server running (prints the URL and a session cookie) for
  * looking at the screens by hand; --no-build uses the existing build as it is.
  *
+ * Besides the wall-clock figures (noisy on a shared machine) it prints, as medians, the CPU time of
+ * the `next start` process per page load (`serverCpuMs`, from /proc, Linux only; it includes the
+ * static files and the live-event stream) and the page's renderer main-thread time until ready
+ * (`pageTaskMs`, of which `pageScriptMs` is JavaScript; Chromium's Performance metrics).
+ *
+ * Chromium builds its own omnibox popup (a WebUI page in a renderer of its own) for every new
+ * browser window, that is for every fresh context here, at the same time as the page loads; on two
+ * cores that took some 600-800 ms from the page. A user's browser builds it once per window, not per
+ * page load, so the benchmark turns those two features off (BROWSER_FEATURES_OFF).
+ *
  * Data: seeded pseudo-random points in a jittered grid over 480 m × 320 m, moving with a growing
  * settlement bowl (radial inward movement, so strain contracts near the centre and extends at the
  * rim) plus 0.7 mm noise; elements from triangulatePlan; results from the batch strain kernel,
@@ -18,7 +28,7 @@
  */
 import { spawn, type ChildProcess } from "node:child_process";
 import { createServer } from "node:net";
-import { existsSync } from "node:fs";
+import { existsSync, readFileSync } from "node:fs";
 import pg from "pg";
 import { chromium } from "playwright-core";
 import { createTestDatabase } from "../support/database.ts";
@@ -26,6 +36,31 @@ import { ensureBuild } from "../../lib/server/cli/serve-core.ts";
 import { triangulatePlan } from "../../lib/network/triangulate.ts";
 import { computeTriangleBatch, createTriangleBatchOut, BATCH_OK } from "../../lib/strain/batch.ts";
 import { hashSecret, newSecret } from "../../lib/server/auth/secrets.ts";
+
+/**
+ * Features Chromium turns off for this run. Chromium keeps only the last --disable-features, so
+ * Playwright's own list (playwright-core 1.65, chromiumSwitches) is repeated here, then ours: the
+ * omnibox popup's WebUI pages, which a new window otherwise builds while the page loads.
+ */
+const BROWSER_FEATURES_OFF = [
+  "AvoidUnnecessaryBeforeUnloadCheckSync", "DestroyProfileOnBrowserClose", "HttpsUpgrades", "HttpsFirstBalancedModeAutoEnable", "LensOverlay", "MediaRouter",
+  "PaintHolding", "ThirdPartyStoragePartitioning", "AvoidCorsURLLoaderRestartOnRedirect", "TcpPortRandomizationWin", "OptimizationHints", "NetworkTimeServiceQuerying",
+  "AimEnabled", "PreconnectToSearch", "msForceBrowserSignIn", "msEdgeUpdateLaunchServicesPreferredVersion",
+  "WebUIOmniboxPopup", "WebUIOmniboxAimPopup",
+];
+
+/** CPU time (user + system) of a process in ms from /proc (clock ticks of 10 ms, the Linux default); null elsewhere. */
+function processCpuMs(pid: number | undefined): number | null {
+  if (!pid) return null;
+  try {
+    const f = readFileSync(`/proc/${pid}/stat`, "utf8").split(") ")[1].split(" ");
+    return (Number(f[11]) + Number(f[12])) * 10;
+  } catch {
+    return null;
+  }
+}
+
+const medianOf = (v: number[]): number | null => (v.length ? [...v].sort((a, b) => a - b)[Math.floor(v.length / 2)] : null);
 
 type Args = { json: boolean; points: number; epochs: number; runs: number; keep: boolean; build: boolean };
 
@@ -294,9 +329,13 @@ async function main(): Promise<void> {
     }
     const executablePath = process.env.EPOCHAL_CHROMIUM ?? "/usr/bin/chromium";
     if (!existsSync(executablePath)) throw new Error(`no Chromium at ${executablePath}`);
-    const browser = await chromium.launch({ executablePath, args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"] });
+    const browser = await chromium.launch({
+      executablePath,
+      args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync", `--disable-features=${BROWSER_FEATURES_OFF.join(",")}`],
+    });
     const samples: number[] = [];
     const drawnSamples: number[] = [];
+    const cpu = { server: [] as number[], task: [] as number[], script: [] as number[] };
     try {
       for (let run = 0; run < args.runs + 1; run++) {
         const ctx = await browser.newContext({ viewport: { width: 1280, height: 800 } });
@@ -316,6 +355,9 @@ async function main(): Promise<void> {
         };
         page.on("requestfinished", done);
         page.on("requestfailed", done);
+        const cdp = await ctx.newCDPSession(page);
+        await cdp.send("Performance.enable");
+        const cpu0 = processCpuMs(server.pid);
         const start = Date.now();
         await page.goto(`${baseUrl}/sites/${site.slug}`, { waitUntil: "commit" });
         await page.waitForSelector('section.plan[data-ready="true"] svg .elements polygon', { timeout: 60_000 });
@@ -324,11 +366,17 @@ async function main(): Promise<void> {
         while (inflight > 0 && Date.now() < idleBy) await new Promise((r) => setTimeout(r, 5));
         if (inflight > 0) throw new Error(`requests still pending 30 s after the plan was drawn (${inflight})`);
         const ms = Math.max(drawn, lastDone) - start;
+        const cpu1 = processCpuMs(server.pid);
+        const m = Object.fromEntries((await cdp.send("Performance.getMetrics")).metrics.map((x) => [x.name, x.value]));
+        const serverMs = cpu0 !== null && cpu1 !== null ? cpu1 - cpu0 : null;
         if (run > 0) {
           samples.push(ms);
           drawnSamples.push(drawn - start);
+          if (serverMs !== null) cpu.server.push(serverMs);
+          cpu.task.push(Math.round(m.TaskDuration * 1000));
+          cpu.script.push(Math.round(m.ScriptDuration * 1000));
         }
-        say(`run ${run}${run === 0 ? " (warm-up)" : ""}: ${ms} ms (plan drawn at ${drawn - start} ms)`);
+        say(`run ${run}${run === 0 ? " (warm-up)" : ""}: ${ms} ms (plan drawn at ${drawn - start} ms; server CPU ${serverMs ?? "–"} ms, page main thread ${Math.round(m.TaskDuration * 1000)} ms of which script ${Math.round(m.ScriptDuration * 1000)} ms)`);
         await ctx.close();
       }
     } finally {
@@ -337,9 +385,23 @@ async function main(): Promise<void> {
     samples.sort((a, b) => a - b);
     const median = samples[Math.floor(samples.length / 2)];
     drawnSamples.sort((a, b) => a - b);
-    const result = { sitePageReadyMs: median, planDrawnMs: drawnSamples[Math.floor(drawnSamples.length / 2)], samplesMs: samples, points: site.points, epochs: site.epochs, elements: site.elements, elementResults: site.results };
+    const result = {
+      sitePageReadyMs: median,
+      planDrawnMs: drawnSamples[Math.floor(drawnSamples.length / 2)],
+      samplesMs: samples,
+      serverCpuMs: medianOf(cpu.server),
+      pageTaskMs: medianOf(cpu.task),
+      pageScriptMs: medianOf(cpu.script),
+      points: site.points,
+      epochs: site.epochs,
+      elements: site.elements,
+      elementResults: site.results,
+    };
     if (args.json) console.log(JSON.stringify(result));
-    else console.log(`site page ready (median of ${samples.length}): ${median} ms  [${samples.join(", ")}]`);
+    else {
+      console.log(`site page ready (median of ${samples.length}): ${median} ms  [${samples.join(", ")}]`);
+      console.log(`CPU per load (medians): server ${result.serverCpuMs ?? "–"} ms, page main thread ${result.pageTaskMs} ms of which script ${result.pageScriptMs} ms`);
+    }
   } finally {
     server?.kill("SIGTERM");
     await new Promise((r) => setTimeout(r, 300));
