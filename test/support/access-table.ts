@@ -88,6 +88,11 @@ async function freshElement(fx: AccessFixture): Promise<string> {
   return String(el.id);
 }
 
+async function freshRecipient(fx: AccessFixture): Promise<string> {
+  const r = await fx.db.mailRecipient.create({ data: { siteId: fx.site.id, email: `${fx.unique("to")}@example.test` } });
+  return String(r.id);
+}
+
 export const ACCESS_TABLE: AccessRow[] = [
   { route: "/api/health", method: "GET", access: "public" },
 
@@ -161,6 +166,11 @@ export const ACCESS_TABLE: AccessRow[] = [
     body: () => ({ comment: "access test: seen" }),
   },
   { route: "/api/v1/sites/[slug]/outbox", method: "GET", access: "read" },
+  // Mail recipients per site and level (issue 6): the role that edits trigger rules, also to read (addresses).
+  { route: "/api/v1/sites/[slug]/recipients", method: "GET", access: "manage-rules" },
+  { route: "/api/v1/sites/[slug]/recipients", method: "POST", access: "manage-rules", body: (fx) => ({ email: `${fx.unique("to")}@example.test`, minLevel: "alert" }) },
+  { route: "/api/v1/sites/[slug]/recipients/[id]", method: "PATCH", access: "manage-rules", params: async (fx) => ({ id: await freshRecipient(fx) }), body: () => ({ digest: true }) },
+  { route: "/api/v1/sites/[slug]/recipients/[id]", method: "DELETE", access: "manage-rules", params: async (fx) => ({ id: await freshRecipient(fx) }) },
   // Reports, exports and the column mapping (issue 9). The PDF row asks for a reversed period (422 after
   // the permission check) so that the table does not start Chromium for every caller.
   { route: "/api/v1/sites/[slug]/report.pdf", method: "GET", access: "read", query: "from=2026-03-05&to=2026-03-01", ok: (s) => s === 422 },

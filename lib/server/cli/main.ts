@@ -11,6 +11,7 @@ const COMMANDS = {
   site: "Create and list sites.",
   token: "Create and revoke API tokens for a site.",
   user: "Create users and grant site roles.",
+  recipient: "Mail recipients of a site's alerts: list, add, update, remove.",
   push: "Post epoch files to a server (HTTP or MQTT).",
   seed: "Write or load the demo scenario.",
   bench: "Run the benchmarks and print one table.",
@@ -24,7 +25,8 @@ function isCommand(name: string): name is CommandName {
 }
 
 export function usage(): string {
-  const rows = Object.entries(COMMANDS).map(([n, d]) => `  ${n.padEnd(8)} ${d}`);
+  const width = Math.max(...Object.keys(COMMANDS).map((n) => n.length));
+  const rows = Object.entries(COMMANDS).map(([n, d]) => `  ${n.padEnd(width)} ${d}`);
   return ["Usage: epochal <command> [options]", "", "Commands:", ...rows, "", "Run `epochal <command> --help` for a command's options."].join("\n");
 }
 
