@@ -25,14 +25,29 @@ function distDir(): string {
   return process.env.EPOCHAL_DIST_DIR ?? ".next";
 }
 
+/**
+ * What the build was made from: the commit, and each changed or new file under app/ and lib/ with
+ * its size and modification time (so that editing a file that was already changed also counts).
+ */
+export function sourceStamp(root: string): string {
+  const head = spawnSync("git", ["rev-parse", "HEAD"], { cwd: root }).stdout?.toString().trim();
+  const dirty = (spawnSync("git", ["status", "--porcelain", "--untracked-files=all", "app", "lib"], { cwd: root }).stdout?.toString() ?? "")
+    .split("\n")
+    .filter((l) => l.trim() !== "")
+    .map((l) => {
+      const file = join(root, l.slice(3).trim());
+      const st = existsSync(file) ? statSync(file) : null;
+      return `${l} ${st ? `${st.size}@${st.mtimeMs}` : "gone"}`;
+    });
+  return [head, ...dirty].join("\n");
+}
+
 function buildIsStale(root: string): boolean {
   const id = join(root, distDir(), "BUILD_ID");
   if (!existsSync(id)) return true;
   const marker = join(root, distDir(), "epochal-source-stamp");
   if (!existsSync(marker)) return true;
-  const head = spawnSync("git", ["rev-parse", "HEAD"], { cwd: root }).stdout?.toString().trim();
-  const dirty = spawnSync("git", ["status", "--porcelain", "app", "lib"], { cwd: root }).stdout?.toString().trim();
-  return readFileSync(marker, "utf8") !== `${head}\n${dirty}` || statSync(id).size === 0;
+  return readFileSync(marker, "utf8") !== sourceStamp(root) || statSync(id).size === 0;
 }
 
 export function ensureBuild(root = projectRoot(), force = false): void {
@@ -40,9 +55,7 @@ export function ensureBuild(root = projectRoot(), force = false): void {
   console.log("Building the dashboard (next build) …");
   const r = spawnSync(process.execPath, [nextBin(root), "build"], { cwd: root, stdio: "inherit", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } });
   if (r.status !== 0) throw new Error("next build failed");
-  const head = spawnSync("git", ["rev-parse", "HEAD"], { cwd: root }).stdout?.toString().trim();
-  const dirty = spawnSync("git", ["status", "--porcelain", "app", "lib"], { cwd: root }).stdout?.toString().trim();
-  writeFileSync(join(root, distDir(), "epochal-source-stamp"), `${head}\n${dirty}`);
+  writeFileSync(join(root, distDir(), "epochal-source-stamp"), sourceStamp(root));
 }
 
 /**
