@@ -11,6 +11,7 @@ import { RecipientCreateBody, RecipientPatchBody } from "../../schemas/recipient
 import { addRecipient, findRecipientByEmail, listRecipients, removeRecipient, updateRecipient } from "../../mail/recipients.ts";
 import type { MailRecipient } from "../../db/generated/client.ts";
 import { cliActor } from "./user.ts";
+import { parseOptions, UsageError } from "../options.ts";
 
 export const help = `Usage: epochal recipient <list|add|update|remove> --site SLUG [options]
 
@@ -34,25 +35,8 @@ type Valued = (typeof VALUED)[number];
 const FLAGS = ["--digest", "--immediate", "--json"] as const;
 type Flag = (typeof FLAGS)[number];
 
-class UsageError extends Error {}
-
 function parse(args: string[]): { values: Partial<Record<Valued, string>>; flags: Set<Flag> } {
-  const values: Partial<Record<Valued, string>> = {};
-  const flags = new Set<Flag>();
-  for (let i = 0; i < args.length; i++) {
-    const a = args[i];
-    if ((FLAGS as readonly string[]).includes(a)) {
-      flags.add(a as Flag);
-      continue;
-    }
-    const eq = a.indexOf("=");
-    const name = eq > 0 ? a.slice(0, eq) : a;
-    if (!(VALUED as readonly string[]).includes(name)) throw new UsageError(`unknown option ${JSON.stringify(a)}`);
-    const v = eq > 0 ? a.slice(eq + 1) : args[++i];
-    if (v === undefined || (eq < 0 && v.startsWith("--"))) throw new UsageError(`option ${name} needs a value`);
-    values[name as Valued] = v;
-  }
-  return { values, flags };
+  return parseOptions(args, VALUED, FLAGS);
 }
 
 /** The option a schema field comes from, for messages that name what the user typed. */

@@ -7,6 +7,7 @@ import { applyMigrations } from "../../db/migrate.ts";
 import { getDb, closeDb } from "../../db/client.ts";
 import { isAppError } from "../../errors.ts";
 import { createSite, listSites, type SiteSummary } from "../../sites.ts";
+import { parseOptions, UsageError } from "../options.ts";
 
 export const help = `Usage:
   epochal site create --slug S --name N --time-zone Z [--sigma-h M --sigma-v M]
@@ -30,25 +31,8 @@ type Valued = (typeof VALUED)[number];
 const FLAGS = ["--refuse-unknown-points", "--json"] as const;
 type FlagName = (typeof FLAGS)[number];
 
-class UsageError extends Error {}
-
 function parse(args: string[]): { values: Partial<Record<Valued, string>>; flags: Set<FlagName> } {
-  const values: Partial<Record<Valued, string>> = {};
-  const flags = new Set<FlagName>();
-  for (let i = 0; i < args.length; i++) {
-    const a = args[i];
-    if ((FLAGS as readonly string[]).includes(a)) {
-      flags.add(a as FlagName);
-      continue;
-    }
-    const eq = a.indexOf("=");
-    const name = eq > 0 ? a.slice(0, eq) : a;
-    if (!(VALUED as readonly string[]).includes(name)) throw new UsageError(`unknown option ${JSON.stringify(a)}`);
-    const v = eq > 0 ? a.slice(eq + 1) : args[++i];
-    if (v === undefined || (eq < 0 && v.startsWith("--"))) throw new UsageError(`option ${name} needs a value`);
-    values[name as Valued] = v;
-  }
-  return { values, flags };
+  return parseOptions(args, VALUED, FLAGS);
 }
 
 function number(flag: Valued, text: string | undefined): number | undefined {
