@@ -20,7 +20,7 @@ import { chromium } from "playwright-core";
 import { createTestDatabase } from "../support/database.ts";
 import { ensureBuild, serverNodeOptions } from "../../lib/server/cli/serve-core.ts";
 import { hashSecret, newSecret } from "../../lib/server/auth/secrets.ts";
-import { buildSyntheticSite } from "./page.ts";
+import { buildSyntheticSite } from "./synthetic-site.ts";
 
 const argv = process.argv.slice(2);
 const opt = (name: string, dflt: number): number => {
