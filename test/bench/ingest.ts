@@ -34,6 +34,8 @@ import { closeIngestPools } from "../../lib/server/ingest/pg-tx.ts";
 import { parseEpochCsvInput } from "../../lib/server/ingest/csv-input.ts";
 import { triangulatePlan } from "../../lib/network/triangulate.ts";
 import { mulberry32 } from "../../seed/random.ts";
+import { parseServerTiming } from "../../lib/server/timing.ts";
+import { serverNodeOptions } from "../../lib/server/cli/serve-core.ts";
 
 const args = process.argv.slice(2);
 const opt = (name: string): string | undefined => {
@@ -118,7 +120,7 @@ async function main(): Promise<void> {
   const db = getDb();
   const tmp = mkdtempSync(join(tmpdir(), "epochal-bench-"));
   let server: ChildProcess | null = null;
-  const out: Record<string, number | string> = {};
+  const out: Record<string, number | string | Record<string, number>> = {};
   try {
     // ---------------------------------------------------------------- backfill vs COPY
     if (runBackfill) {
@@ -244,7 +246,8 @@ async function main(): Promise<void> {
       ["point,east,north,height,time", ...livePts.map((p) => `${p.code},${fmt(p.east + k * 1e-5 + (rnd() - 0.5) * 0.002)},${fmt(p.north + (rnd() - 0.5) * 0.002)},${fmt(p.height + (rnd() - 0.5) * 0.003)},${new Date(Date.UTC(2024, 0, 1) + k * STEP_MS).toISOString()}`)].join("\n") + "\n";
 
     let mode = modeArg;
-    let post: (body: string) => Promise<number>;
+    // Each post answers its status and its Server-Timing phases (the route's PhaseTimer).
+    let post: (body: string) => Promise<{ status: number; phases: Map<string, number> }>;
     if (mode === "http") {
       try {
         process.env.EPOCHAL_DIST_DIR ??= ".next-bench";
@@ -255,7 +258,8 @@ async function main(): Promise<void> {
         }
         const port = await freePort();
         server = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-p", String(port), "-H", "127.0.0.1"], {
-          env: { ...process.env, DATABASE_URL: url, NEXT_TELEMETRY_DISABLED: "1", EPOCHAL_DIST_DIR: process.env.EPOCHAL_DIST_DIR },
+          // The server's own Node options, as `epochal serve` gives them.
+          env: { ...process.env, NODE_OPTIONS: serverNodeOptions(), DATABASE_URL: url, NEXT_TELEMETRY_DISABLED: "1", EPOCHAL_DIST_DIR: process.env.EPOCHAL_DIST_DIR },
           stdio: ["ignore", "ignore", "inherit"],
         });
         const baseUrl = `http://127.0.0.1:${port}`;
@@ -269,7 +273,7 @@ async function main(): Promise<void> {
         post = async (body) => {
           const r = await fetch(`${baseUrl}/api/v1/sites/bench-live/epochs`, { method: "POST", headers: { "content-type": "text/csv", authorization: `Bearer ${secret}` }, body });
           await r.arrayBuffer();
-          return r.status;
+          return { status: r.status, phases: parseServerTiming(r.headers.get("server-timing")) };
         };
       } catch (err) {
         log(`live: production server unavailable (${(err as Error).message}); falling back to the route handler in-process`);
@@ -283,22 +287,31 @@ async function main(): Promise<void> {
       post = async (body) => {
         const r = await route.POST(new Request("http://localhost/api/v1/sites/bench-live/epochs", { method: "POST", headers: { "content-type": "text/csv", authorization: `Bearer ${secret}` }, body }), { params: Promise.resolve({ slug: "bench-live" }) });
         await r.arrayBuffer();
-        return r.status;
+        return { status: r.status, phases: parseServerTiming(r.headers.get("server-timing")) };
       };
     }
     const send = post!;
     // Reference epoch and two warm-up posts, not timed.
     for (let k = 0; k < 3; k++) {
-      const st = await send(liveCsv(k));
-      if (st !== 201) throw new Error(`live warm-up post answered ${st}`);
+      const { status } = await send(liveCsv(k));
+      if (status !== 201) throw new Error(`live warm-up post answered ${status}`);
     }
     const times: number[] = [];
+    const phaseMs = new Map<string, number[]>();
     for (let k = 3; k < 3 + livePosts; k++) {
       const body = liveCsv(k);
       const t = performance.now();
-      const st = await send(body);
-      times.push(performance.now() - t);
-      if (st !== 201) throw new Error(`live post answered ${st}`);
+      const { status, phases } = await send(body);
+      const total = performance.now() - t;
+      times.push(total);
+      if (status !== 201) throw new Error(`live post answered ${status}`);
+      let server = 0;
+      for (const [name, ms] of phases) {
+        server += ms;
+        phaseMs.set(name, [...(phaseMs.get(name) ?? []), ms]);
+      }
+      // Outside the handler's timer: HTTP, authentication, framework, response.
+      phaseMs.set("outside", [...(phaseMs.get("outside") ?? []), total - server]);
     }
     const [{ rows }] = await db.$queryRawUnsafe<{ rows: number }[]>(`SELECT count(*)::int AS rows FROM "ElementResult" WHERE "elementId" IN (SELECT id FROM "Element" WHERE "siteId" = $1)`, liveSite.id);
     if (rows !== elementCount * (3 + livePosts)) throw new Error(`expected ${elementCount * (3 + livePosts)} result rows, found ${rows}`);
@@ -310,7 +323,9 @@ async function main(): Promise<void> {
     out.livePosts = livePosts;
     out.liveEpochP50Ms = Number(quantile(times, 0.5).toFixed(1));
     out.liveEpochP95Ms = Number(quantile(times, 0.95).toFixed(1));
+    out.livePhaseMedianMs = Object.fromEntries([...phaseMs].map(([name, v]) => [name, Number(quantile([...v].sort((a, b) => a - b), 0.5).toFixed(1))]));
     log(`live epoch (${LIVE_POINTS} points, ${elementCount} elements, ${livePosts} posts, ${mode}): p50 ${out.liveEpochP50Ms} ms, p95 ${out.liveEpochP95Ms} ms (goal p95 ≤ 150 ms)`);
+    log(`live phases, median ms: ${Object.entries(out.livePhaseMedianMs as Record<string, number>).map(([n, v]) => `${n} ${v}`).join(" · ")}`);
     }
   } finally {
     if (server) {

@@ -25,6 +25,7 @@ import { afterEpochsCommitted } from "../pipeline.ts";
 import { floatArrayBinary, intArray, intArrayBinary, textArray } from "./sql-arrays.ts";
 import { withPgTransaction, type Sql } from "./pg-tx.ts";
 import type { EpochInput } from "../../formats/epoch-json.ts";
+import type { PhaseTimer } from "../timing.ts";
 
 /** First key of the two-key advisory lock: "EPCH" in ASCII, so our locks are recognisable in pg_locks. */
 export const INGEST_LOCK_NAMESPACE = 0x45504348;
@@ -46,6 +47,8 @@ export interface IngestOptions {
   nowMs?: number;
   /** Test hook: called at each stage inside the transaction; throwing there must roll everything back. */
   failpoint?: (stage: IngestStage) => void | Promise<void>;
+  /** Phase timings (the route's Server-Timing header): lock, points, classify, observations, audit, results-*, commit, after-commit. */
+  timer?: PhaseTimer;
 }
 
 export interface StoredEpoch {
@@ -113,8 +116,10 @@ export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOpt
   }
 
   const result = await withPgTransaction((tx) => run(tx, input, opts), { timeoutMs: transactionTimeoutMs() });
+  opts.timer?.lap("commit");
   const committed = result.epochs.filter((e) => e.outcome !== "unchanged").map((e) => e.id);
   await afterEpochsCommitted(opts.siteId, committed);
+  opts.timer?.lap("after-commit");
   return result;
 }
 
@@ -123,6 +128,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   await tx.query(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, [INGEST_LOCK_NAMESPACE, siteId]);
   const [site] = await tx.query<{ sigmaHM: number; sigmaVM: number; refuseUnknownPoints: boolean }>(`SELECT "sigmaHM", "sigmaVM", "refuseUnknownPoints" FROM "Site" WHERE id = $1`, [siteId]);
   if (!site) throw new AppError("not_found", `No site with id ${siteId}.`);
+  opts.timer?.lap("lock");
 
   // 1. Points.
   const firstUse = new Map<string, { epoch: EpochInput; index: number }>();
@@ -145,6 +151,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     for (const p of added) pointId.set(p.code, p.id);
   }
   await opts.failpoint?.("after-points");
+  opts.timer?.lap("points");
 
   // 2. Classify against the current revisions.
   const resolved = input.map((ep) =>
@@ -187,6 +194,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     });
   }
 
+  opts.timer?.lap("classify");
   // 3. Write.
   const revisedIds = plan.filter((p) => p.previous).map((p) => (p.previous as (typeof existing)[number]).id);
   if (revisedIds.length > 0) await tx.query(`UPDATE "Epoch" SET "isCurrent" = false WHERE id = ANY($1::int[])`, [intArray(revisedIds)]);
@@ -205,7 +213,8 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
       if (id === undefined) throw new Error(`ingest: inserted epoch at ${ep.time} not returned`);
       out[p.index] = { id, time: ep.time, observations: ep.observations.length, revision: p.revision, contentHash: hashes[p.index], outcome: p.previous ? "revised" : "created" };
     }
-    await insertObservations(tx, plan.map((p) => ({ epochId: (out[p.index] as StoredEpoch).id, obs: resolved[p.index] })), pointId);
+    opts.timer?.lap("epochs");
+    await insertObservations(tx, plan.map((p) => ({ epochId: (out[p.index] as StoredEpoch).id, obs: resolved[p.index] })), pointId, opts.timer);
     await opts.failpoint?.("after-observations");
 
     // 4. Audit and results.
@@ -220,6 +229,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
        SELECT $1, $2, a, 'epoch', i, b, c FROM unnest($3::text[], $4::text[], $5::jsonb[], $6::jsonb[]) AS u(a, i, b, c)`,
       [opts.actor, siteId, textArray(audit.map((a) => a.action)), textArray(audit.map((a) => a.entityId)), textArray(audit.map((a) => a.before)), textArray(audit.map((a) => a.after))],
     );
+    opts.timer?.lap("audit");
     // The stored epochs go to the results step as they are in memory (no re-read of what was just written).
     results = await computeResultsForEpochs(
       tx,
@@ -228,7 +238,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
         const e = out[p.index] as StoredEpoch;
         return { id: e.id, time: e.time, points: new Map(resolved[p.index].map((o) => [o.point, o])) };
       }),
-      { newEpochs: true },
+      { newEpochs: true, timer: opts.timer },
     );
     await opts.failpoint?.("after-results");
   }
@@ -236,15 +246,17 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   return { stored: plan.length > 0, epochs: out as StoredEpoch[], newPoints, results };
 }
 
-async function insertObservations(tx: Tx, epochs: { epochId: number; obs: ResolvedObservation[] }[], pointId: Map<string, number>): Promise<void> {
+async function insertObservations(tx: Tx, epochs: { epochId: number; obs: ResolvedObservation[] }[], pointId: Map<string, number>, timer?: PhaseTimer): Promise<void> {
   let eid: number[] = [], pid: number[] = [], e: number[] = [], n: number[] = [], h: number[] = [], se: number[] = [], sn: number[] = [], sh: number[] = [];
   const flush = async (): Promise<void> => {
     if (eid.length === 0) return;
+    timer?.lap("observations-encode");
     await tx.query(
       `INSERT INTO "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight")
        SELECT * FROM unnest($1::int[], $2::int[], $3::float8[], $4::float8[], $5::float8[], $6::float8[], $7::float8[], $8::float8[])`,
       [intArrayBinary(eid), intArrayBinary(pid), floatArrayBinary(e), floatArrayBinary(n), floatArrayBinary(h), floatArrayBinary(se), floatArrayBinary(sn), floatArrayBinary(sh)],
     );
+    timer?.lap("observations");
     eid = []; pid = []; e = []; n = []; h = []; se = []; sn = []; sh = [];
   };
   for (const ep of epochs) {

@@ -21,6 +21,7 @@ import { computeTriangleBatch, createTriangleBatchOut, BATCH_OK } from "../../st
 import type { ElementKind, ElementMode, SurveyPoint } from "../../strain/types.ts";
 import { floatArrayBinary, intArray, intArrayBinary, textArray } from "../ingest/sql-arrays.ts";
 import { currentDatabaseKey, type Sql } from "../ingest/pg-tx.ts";
+import type { PhaseTimer } from "../timing.ts";
 
 export type Tx = Prisma.TransactionClient | Db;
 
@@ -208,7 +209,7 @@ export type EpochToCompute = number | { id: number; time: string | Date; points:
  * Computes and stores the results of every enabled element of `siteId` at each of `epochs`.
  * Returns the number of rows written. Call it inside the transaction that stored the epochs.
  */
-export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], opts: { newEpochs?: boolean } = {}): Promise<number> {
+export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], opts: { newEpochs?: boolean; timer?: PhaseTimer } = {}): Promise<number> {
   if (epochs.length === 0) return 0;
   const dbKey = currentDatabaseKey();
   // One round trip: the site's reference (Site.referenceEpochId, else its first current epoch) and the fingerprint of its elements.
@@ -261,6 +262,7 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
   const refIds = new Set(byRef.keys());
   const points = await epochPoints(tx, dbKey, [...new Set([...refIds, ...epochIds])], known, refIds);
   const rows = new ResultColumns();
+  opts.timer?.lap("results-read");
 
   for (const [refId, els] of byRef) {
     const ref = points.get(refId) ?? new Map<string, SurveyPoint>();
@@ -323,7 +325,8 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
       }
     }
   }
-  await insertResultRows(tx, rows, opts.newEpochs === true);
+  opts.timer?.lap("results-compute");
+  await insertResultRows(tx, rows, opts.newEpochs === true, opts.timer);
   // Live epochs (one or a few per request) are kept for the alert evaluation after commit; backfills are not.
   if (opts.newEpochs === true && epochIds.length <= 4) keepComputed(dbKey, rows);
   return rows.length;
@@ -332,10 +335,19 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
 const RESULT_CHUNK = 50_000;
 
 /** `fresh`: the epochs were stored in this transaction, so no row can exist yet (plain INSERT, cheaper). */
-async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean): Promise<void> {
+async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean, timer?: PhaseTimer): Promise<void> {
   for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
     const j = Math.min(rows.length, i + RESULT_CHUNK);
     const col = (k: StoredValueKey): Buffer => floatArrayBinary(rows.values[k].slice(i, j));
+    const params = [
+      intArrayBinary(rows.elementId.slice(i, j)),
+      intArrayBinary(rows.epochId.slice(i, j)),
+      intArrayBinary(rows.referenceEpochId.slice(i, j)),
+      textArray(rows.timeIso.slice(i, j)),
+      textArray(rows.status.slice(i, j)),
+      ...RESULT_KEYS.map(col),
+    ];
+    timer?.lap("results-encode");
     await tx.query(
       `INSERT INTO "ElementResult" ("elementId", "epochId", "referenceEpochId", "time", "status",
          "greenMax", "greenMin", "maxShear", "arealStrain", "rotationDeg", "azimuthMaxDeg", "engineering",
@@ -349,14 +361,8 @@ async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean): P
          "azimuthMaxDeg" = EXCLUDED."azimuthMaxDeg", "engineering" = EXCLUDED."engineering",
          "sigmaGreenMax" = EXCLUDED."sigmaGreenMax", "sigmaGreenMin" = EXCLUDED."sigmaGreenMin", "sigmaMaxShear" = EXCLUDED."sigmaMaxShear",
          "sigmaArealStrain" = EXCLUDED."sigmaArealStrain", "sigmaEngineering" = EXCLUDED."sigmaEngineering"`}`,
-      [
-        intArrayBinary(rows.elementId.slice(i, j)),
-        intArrayBinary(rows.epochId.slice(i, j)),
-        intArrayBinary(rows.referenceEpochId.slice(i, j)),
-        textArray(rows.timeIso.slice(i, j)),
-        textArray(rows.status.slice(i, j)),
-        ...RESULT_KEYS.map(col),
-      ],
+      params,
     );
+    timer?.lap("results-insert");
   }
 }

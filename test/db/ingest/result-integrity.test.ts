@@ -3,6 +3,9 @@
  * results engine writing rows only for elements and epochs it has just read in the same transaction.
  * This checks that invariant on a site that goes through the paths that write results — new epochs,
  * a backfill, a revision, an element added later, a re-baselined element — and a rolled-back request.
+ * Observation has no foreign keys either (migration observation_without_foreign_keys): the same
+ * flows must leave every observation on an existing epoch and point of one site, and the triggers
+ * that replace ON DELETE RESTRICT must refuse deleting an epoch or a point that has observations.
  */
 import { describe, expect, it } from "vitest";
 import { getDb } from "../../../lib/server/db/client.ts";
@@ -26,6 +29,27 @@ async function brokenRows(siteId: number): Promise<Broken> {
        LEFT JOIN "Element" el ON el.id = m."elementId"
        LEFT JOIN "Epoch" ep ON ep.id = m."epochId"
        LEFT JOIN "Epoch" rf ON rf.id = m."referenceEpochId"`,
+    siteId,
+  );
+  return r;
+}
+
+type BrokenObs = { orphanEpoch: number; orphanPoint: number; otherSite: number; rows: number };
+
+/** Observations of the site's epochs or points without their epoch or point, or across two sites. */
+async function brokenObservations(siteId: number): Promise<BrokenObs> {
+  const [r] = await getDb().$queryRawUnsafe<BrokenObs[]>(
+    `WITH mine AS (
+       SELECT o.* FROM "Observation" o WHERE o."epochId" IN (SELECT id FROM "Epoch" WHERE "siteId" = $1)
+       UNION
+       SELECT o.* FROM "Observation" o WHERE o."pointId" IN (SELECT id FROM "Point" WHERE "siteId" = $1))
+     SELECT count(*) FILTER (WHERE ep.id IS NULL)::int AS "orphanEpoch",
+            count(*) FILTER (WHERE pt.id IS NULL)::int AS "orphanPoint",
+            count(*) FILTER (WHERE ep."siteId" <> pt."siteId")::int AS "otherSite",
+            count(*)::int AS rows
+       FROM mine m
+       LEFT JOIN "Epoch" ep ON ep.id = m."epochId"
+       LEFT JOIN "Point" pt ON pt.id = m."pointId"`,
     siteId,
   );
   return r;
@@ -55,5 +79,21 @@ describe("element results without foreign keys", () => {
     // T1 at six epochs (the first, three backfilled, the revision, the last); T2 and B1 at the last
     // (elements made straight in the table get no history).
     expect(b).toEqual({ orphanElement: 0, orphanEpoch: 0, otherSite: 0, wrongTime: 0, rows: 8 });
+    // Six epochs (five times, one of them revised) of the grid's points, nothing from the refused request.
+    expect(await brokenObservations(s.id)).toEqual({ orphanEpoch: 0, orphanPoint: 0, otherSite: 0, rows: 6 * GRID.length });
+  });
+
+  it("an epoch or a point with observations cannot be deleted; one without can", async () => {
+    const s = await makeSite();
+    const db = getDb();
+    expect((await post(s.slug, epochCsv("2024-06-01T00:00:00Z", GRID), { token: s.ingestToken })).status).toBe(201);
+    const epoch = await db.epoch.findFirstOrThrow({ where: { siteId: s.id } });
+    const point = await db.point.findFirstOrThrow({ where: { siteId: s.id, code: GRID[0][0] } });
+    await expect(db.epoch.delete({ where: { id: epoch.id } })).rejects.toThrow(/never deleted/);
+    await expect(db.point.delete({ where: { id: point.id } })).rejects.toThrow(/never deleted/);
+    expect(await brokenObservations(s.id)).toEqual({ orphanEpoch: 0, orphanPoint: 0, otherSite: 0, rows: GRID.length });
+    const unused = await db.point.create({ data: { siteId: s.id, code: "UNUSED" } });
+    await db.point.delete({ where: { id: unused.id } });
+    expect(await db.point.count({ where: { id: unused.id } })).toBe(0);
   });
 });

@@ -12,17 +12,20 @@ import { parseIngestRequest } from "@/lib/server/ingest/request.ts";
 import { ingestEpochs } from "@/lib/server/ingest/service.ts";
 import { listEpochs } from "@/lib/server/ingest/read.ts";
 import { epochListQuerySchema, queryIssues } from "@/lib/server/schemas/ingest.ts";
+import { PhaseTimer } from "@/lib/server/timing.ts";
 
 export const dynamic = "force-dynamic";
 
 export const POST = siteRoute("ingest", async ({ req, site, actor }) => {
+  const timer = new PhaseTimer();
   const parsed = await parseIngestRequest(req, site.id);
-  const r = await ingestEpochs(parsed.epochs, { siteId: site.id, actor: actor.label, revise: parsed.revise, source: "api" });
+  timer.lap("parse");
+  const r = await ingestEpochs(parsed.epochs, { siteId: site.id, actor: actor.label, revise: parsed.revise, source: "api", timer });
   const body = {
     epochs: r.epochs.map((e) => ({ id: e.id, time: e.time, observations: e.observations, revision: e.revision, outcome: e.outcome, contentHash: e.contentHash })),
     newPoints: r.newPoints,
   };
-  return Response.json(body, { status: r.stored ? 201 : 200, headers: { "Cache-Control": "no-store" } });
+  return Response.json(body, { status: r.stored ? 201 : 200, headers: { "Cache-Control": "no-store", "Server-Timing": timer.header() } });
 });
 
 export const GET = siteRoute("read", async ({ req, site }) => {
