@@ -9,7 +9,10 @@
  * and does not stop the others, nor undo the stored epochs.
  */
 
-export type EpochsCommitted = { siteId: number; epochIds: number[] };
+import type { PhaseTimer } from "./timing.ts";
+
+/** `timer`: the request's phase timer when there is one (listeners may lap their own phases on it). */
+export type EpochsCommitted = { siteId: number; epochIds: number[]; timer?: PhaseTimer };
 export type EpochsCommittedListener = (event: EpochsCommitted) => void | Promise<void>;
 
 // Kept on globalThis so that every copy of this module (Next.js bundles, hot reloads) shares one registry.
@@ -30,11 +33,11 @@ export function onEpochsCommitted(listener: EpochsCommittedListener): () => void
   };
 }
 
-export async function afterEpochsCommitted(siteId: number, epochIds: number[]): Promise<void> {
+export async function afterEpochsCommitted(siteId: number, epochIds: number[], timer?: PhaseTimer): Promise<void> {
   if (epochIds.length === 0) return;
   for (const l of [...listeners()]) {
     try {
-      await l({ siteId, epochIds: [...epochIds] });
+      await l(timer ? { siteId, epochIds: [...epochIds], timer } : { siteId, epochIds: [...epochIds] });
     } catch (err) {
       console.error(`epochal: an epochs-committed listener failed for site ${siteId}`, err);
     }

@@ -4,7 +4,10 @@
  * (lib/triggers/evaluate.ts) in epoch time order, and the transitions are written: one Alert per rule
  * and element while the condition lasts, one AlertEvent per change, mail rows for openings and
  * escalations. All of it in one transaction under a per-site advisory lock, so two ingests of the same
- * site cannot both open an alert; mails are queued only after commit (runAlerting).
+ * site cannot both open an alert; mails are queued only after commit (runAlerting). The transaction
+ * is a plain pg one with parameterised SQL (lib/server/ingest/pg-tx.ts), as ingest's is: through
+ * Prisma's interactive transaction the same work cost about 40 ms per live epoch of ~4,000 elements
+ * (test/bench/ingest.ts), nearly all of it per-call overhead.
  *
  * Which results: the element's reference epoch as the results engine uses it (Element.referenceEpochId,
  * else the site's reference); only current epoch revisions. An epoch not later than an open alert's last
@@ -16,7 +19,7 @@
  * still recorded but no longer mailed (neither immediately nor in digests).
  */
 import { getDb, type Db } from "../db/client.ts";
-import type { Alert, ElementResult, Prisma, TriggerRule } from "../db/generated/client.ts";
+import type { Alert, ElementResult, TriggerRule } from "../db/generated/client.ts";
 import { evaluateTransition, nextState, type AlertState, type Transition } from "../../triggers/evaluate.ts";
 import { comparedValueOf, DEFAULT_SIGNIFICANCE_K, type ComparedValue, type QuantitySample } from "../../triggers/quantities.ts";
 import { higherLevel, isRuleQuantity, isTriggerLevel, parseQuantity, type BaseQuantity, type RuleQuantity, type RuleSpec, type TriggerLevel } from "../../triggers/rule.ts";
@@ -24,15 +27,22 @@ import { recordAlertMails } from "../mail/outgoing.ts";
 import type { AlertMailFacts } from "../mail/compose.ts";
 import { mailConfigFromEnv, type MailConfig } from "../mail/config.ts";
 import { enqueueMails, scheduleDigest, startMailWorker } from "../mail/queue.ts";
-import { pgQuery } from "../ingest/pg-tx.ts";
-import { computedResultsOf } from "../results/compute.ts";
+import { pgQuery, withPgTransaction, type Sql } from "../ingest/pg-tx.ts";
+import { computedResultsOf, type ComputedEpoch } from "../results/compute.ts";
+import type { PhaseTimer } from "../timing.ts";
 import type { StoredValueKey } from "../../strain/stored-values.ts";
 import { floatArray, intArray, intArrayBinary, textArray } from "../ingest/sql-arrays.ts";
 
 /** Advisory lock class of alert evaluation (the second key is the site id). */
 export const ALERT_LOCK_CLASS = 727_001;
 
-export type EvaluateOptions = { hasSmtp: boolean; publicUrl: string; k?: number };
+export type EvaluateOptions = {
+  hasSmtp: boolean;
+  publicUrl: string;
+  k?: number;
+  /** Phase laps (the ingest route's Server-Timing). */
+  timer?: PhaseTimer;
+};
 
 export type TransitionRecord = { ruleId: number; elementId: number; epochId: number; alertId: number | null; transition: Transition };
 
@@ -53,7 +63,7 @@ function sampleOf(row: ResultSample, base: BaseQuantity): QuantitySample {
   return { timeMs: row.time.getTime(), value, sigma };
 }
 
-function stateOf(a: Alert | null): AlertState {
+function stateOf(a: Pick<Alert, "clearedAt" | "level" | "isSignificant"> | null): AlertState {
   if (!a || a.clearedAt || !isTriggerLevel(a.level)) return { status: "none" };
   return { status: a.isSignificant ? "open" : "watch", level: a.level };
 }
@@ -63,6 +73,8 @@ function responseFor(rule: { responseReview: string; responseAlert: string; resp
 }
 
 type ElementHead = { id: number; name: string; label: string; kind: string; referenceEpochId: number | null };
+/** What evaluation needs of an element to pick its results; the full head (name, label) only when a mail is written. */
+type ElementRef = { id: number; referenceEpochId: number | null };
 /** The columns the state machine reads from a result row. */
 type ResultSample = Pick<ElementResult, "elementId" | "epochId" | "time" | "status"> & Partial<Record<keyof ElementResult, unknown>>;
 
@@ -70,32 +82,46 @@ type ResultSample = Pick<ElementResult, "elementId" | "epochId" | "time" | "stat
  * Everything evaluation reads that does not need the site's alert lock: the rules, the epochs, the
  * elements and their results. Through the plain pg pool (Prisma's per-call cost is most of the time at
  * thousands of rows); results are committed rows of committed epochs, which evaluation never writes.
- * Results are read by the full key at the new epochs and at the site's current epoch just before them
- * (the predecessor a rate needs); an element without a usable result there gets its own look-back.
+ * The rules, the epochs and the site's head (reference, previous epoch) are three concurrent reads.
+ * When this process has just computed the new epochs (computedResultsOf), their rows and the element
+ * set they were computed for come from memory; otherwise results are read by the full key at the new
+ * epochs and at the site's current epoch just before them (the predecessor a rate needs), and an
+ * element without a usable result there gets its own look-back.
  */
-async function readInputs(siteId: number, epochIds: readonly number[]) {
-  const rules = await pgQuery<TriggerRule>(`SELECT * FROM "TriggerRule" WHERE "siteId" = $1 AND enabled ORDER BY id`, [siteId]);
-  if (rules.length === 0) return null;
-  const epochs = await pgQuery<{ id: number; time: Date }>(`SELECT id, "time" FROM "Epoch" WHERE "siteId" = $1 AND id = ANY($2::int[]) AND "isCurrent" ORDER BY "time", id`, [siteId, intArray([...epochIds])]);
-  if (epochs.length === 0) return null;
-  const allElementIds = [...new Set(rules.flatMap((r) => r.elementIds))];
-  const [head] = await pgQuery<{ siteRef: number | null; firstEpoch: number | null; prevId: number | null; prevTime: Date | null }>(
-    `SELECT s."referenceEpochId" AS "siteRef",
-            (SELECT id FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" ORDER BY "time", id LIMIT 1) AS "firstEpoch",
-            p.id AS "prevId", p."time" AS "prevTime"
-       FROM "Site" s
-       LEFT JOIN LATERAL (SELECT id, "time" FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" AND "time" < $2 ORDER BY "time" DESC, id DESC LIMIT 1) p ON true
-      WHERE s.id = $1`,
-    [siteId, epochs[0].time.toISOString()],
-  );
+async function readInputs(siteId: number, epochIds: readonly number[], timer?: PhaseTimer) {
+  const ids = intArray([...epochIds]);
+  const [rules, epochs, heads] = await Promise.all([
+    pgQuery<TriggerRule>(`SELECT * FROM "TriggerRule" WHERE "siteId" = $1 AND enabled ORDER BY id`, [siteId]),
+    pgQuery<{ id: number; time: Date }>(`SELECT id, "time" FROM "Epoch" WHERE "siteId" = $1 AND id = ANY($2::int[]) AND "isCurrent" ORDER BY "time", id`, [siteId, ids]),
+    pgQuery<{ siteRef: number | null; firstEpoch: number | null; prevId: number | null; prevTime: Date | null }>(
+      `SELECT s."referenceEpochId" AS "siteRef",
+              (SELECT id FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" ORDER BY "time", id LIMIT 1) AS "firstEpoch",
+              p.id AS "prevId", p."time" AS "prevTime"
+         FROM "Site" s
+         LEFT JOIN LATERAL (
+           SELECT id, "time" FROM "Epoch"
+            WHERE "siteId" = s.id AND "isCurrent"
+              AND "time" < (SELECT min("time") FROM "Epoch" WHERE "siteId" = s.id AND id = ANY($2::int[]) AND "isCurrent")
+            ORDER BY "time" DESC, id DESC LIMIT 1) p ON true
+        WHERE s.id = $1`,
+      [siteId, ids],
+    ),
+  ]);
+  timer?.lap("alerts-read");
+  if (rules.length === 0 || epochs.length === 0) return null;
+  const head = heads[0];
+  const allElementIds = new Set(rules.flatMap((r) => r.elementIds));
   const siteRef = head?.siteRef ?? head?.firstEpoch ?? null;
-  const elementRows = await pgQuery<ElementHead>(
-    `SELECT id, name, label, kind, "referenceEpochId" FROM "Element" WHERE "siteId" = $1 AND id = ANY($2::int[]) AND "disabledAt" IS NULL`,
-    [siteId, intArray(allElementIds)],
-  );
+  // The element set of the results just computed in this process, else the database's.
+  const computed = epochs.map((e) => computedResultsOf(e.id));
+  const known = computed.every((c) => c !== undefined) ? (computed[0] as ComputedEpoch).elements : null;
+  const elementRows: ElementRef[] = known
+    ? known.filter((e) => allElementIds.has(e.id))
+    : await pgQuery<ElementRef>(`SELECT id, "referenceEpochId" FROM "Element" WHERE "siteId" = $1 AND id = ANY($2::int[]) AND "disabledAt" IS NULL`, [siteId, intArray([...allElementIds])]);
   const elements = new Map(elementRows.map((e) => [e.id, e]));
   const refOf = (elementId: number): number | null => elements.get(elementId)?.referenceEpochId ?? siteRef;
   const refs = [...elements.keys()].map((id) => ({ id, ref: refOf(id) })).filter((p): p is { id: number; ref: number } => p.ref !== null);
+  const refById = new Map(refs.map((p) => [p.id, p.ref]));
 
   // Only the columns the rules compare (a whitelist: the names come from VALUE_FIELD).
   const bases = [...new Set(rules.filter((r) => isRuleQuantity(r.quantity)).map((r) => parseQuantity(r.quantity as RuleQuantity).base))];
@@ -104,22 +130,24 @@ async function readInputs(siteId: number, epochIds: readonly number[]) {
   const rateElements = new Set(rules.filter((r) => isRuleQuantity(r.quantity) && parseQuantity(r.quantity).isRate).flatMap((r) => r.elementIds));
   const wantPrev = head?.prevId != null && rateElements.size > 0;
   const at = [...(wantPrev ? [{ id: head.prevId as number, time: head.prevTime as Date }] : []), ...epochs];
-  // Epochs this process has just computed come from memory; the others from the database.
+  // Epochs this process has just computed come from memory (every wanted element's row there); the others from the database.
   const rows: ResultSample[] = [];
   const fromDb: { id: number; time: Date }[] = [];
   const colsOf = bases.flatMap((b) => [VALUE_FIELD[b].value, VALUE_FIELD[b].sigma]) as StoredValueKey[];
   for (const ep of at) {
     const c = computedResultsOf(ep.id);
-    if (!c || refs.some((p) => !c.index.has(`${p.id}:${p.ref}`))) {
-      fromDb.push(ep);
-      continue;
+    const mine: ResultSample[] = [];
+    if (c) {
+      const { elementId: eid, epochId: pid, referenceEpochId: rid, status } = c.columns;
+      for (let i = 0; i < eid.length; i++) {
+        if (pid[i] !== ep.id || refById.get(eid[i]) !== rid[i]) continue;
+        const row: ResultSample = { elementId: eid[i], epochId: ep.id, time: ep.time, status: status[i] };
+        for (const k of colsOf) (row as Record<string, unknown>)[k] = c.columns.values[k][i];
+        mine.push(row);
+      }
     }
-    for (const p of refs) {
-      const i = c.index.get(`${p.id}:${p.ref}`) as number;
-      const row: ResultSample = { elementId: p.id, epochId: ep.id, time: ep.time, status: c.columns.status[i] };
-      for (const k of colsOf) (row as Record<string, unknown>)[k] = c.columns.values[k][i];
-      rows.push(row);
-    }
+    if (c && mine.length === refs.length) rows.push(...mine);
+    else fromDb.push(ep);
   }
   if (fromDb.length > 0) rows.push(...(await readPackedResults(refs, fromDb, bases)));
   /** Result rows by epoch id, then element id. */
@@ -145,7 +173,44 @@ async function readInputs(siteId: number, epochIds: readonly number[]) {
     );
     for (const p of prev) prevRow.set(p.elementId, p);
   }
+  timer?.lap("alerts-results");
   return { rules, epochs, elements, rowAt, prevRow };
+}
+
+/** Alerts whose only change is the latest value: one UPDATE for all of them. */
+async function writeStays(sql: Sql, stays: readonly { id: number; lastEpochId: number; value: number; sigma: number | null }[]): Promise<void> {
+  await sql.query(
+    `UPDATE "Alert" a SET "lastEpochId" = u.e, value = u.v, sigma = u.s
+       FROM unnest($1::int[], $2::int[], $3::float8[], $4::float8[]) AS u(id, e, v, s) WHERE a.id = u.id`,
+    [intArray(stays.map((x) => x.id)), intArray(stays.map((x) => x.lastEpochId)), floatArray(stays.map((x) => x.value)), floatArray(stays.map((x) => x.sigma))],
+  );
+}
+
+/** Alert columns evaluation may set; the names are this whitelist, the values parameters. */
+type AlertChange = Partial<Pick<Alert, "level" | "peakLevel" | "isSignificant" | "openedAt" | "openedEpochId" | "lastEpochId" | "value" | "sigma" | "clearedAt">>;
+
+async function insertAlert(sql: Sql, a: Pick<Alert, "siteId" | "ruleId" | "elementId" | "level" | "peakLevel" | "openedAt" | "openedEpochId" | "lastEpochId" | "value" | "sigma" | "isSignificant">): Promise<Alert> {
+  const [row] = await sql.query<Alert>(
+    `INSERT INTO "Alert" ("siteId", "ruleId", "elementId", level, "peakLevel", "openedAt", "openedEpochId", "lastEpochId", value, sigma, "isSignificant")
+     VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11) RETURNING *`,
+    [a.siteId, a.ruleId, a.elementId, a.level, a.peakLevel, a.openedAt, a.openedEpochId, a.lastEpochId, a.value, a.sigma, a.isSignificant],
+  );
+  return row;
+}
+
+async function updateAlert(sql: Sql, id: number, change: AlertChange): Promise<Alert> {
+  const keys = Object.keys(change) as (keyof AlertChange)[];
+  const set = keys.map((k, i) => `"${k}" = $${i + 2}`).join(", ");
+  const [row] = await sql.query<Alert>(`UPDATE "Alert" SET ${set} WHERE id = $1 RETURNING *`, [id, ...keys.map((k) => change[k])]);
+  return row;
+}
+
+async function insertEvent(sql: Sql, e: { alertId: number; at: Date; kind: string; level: TriggerLevel; value: number; comment: string | null }): Promise<bigint> {
+  const [row] = await sql.query<{ id: string }>(
+    `INSERT INTO "AlertEvent" ("alertId", at, kind, level, value, actor, comment) VALUES ($1, $2, $3, $4, $5, 'system', $6) RETURNING id::text AS id`,
+    [e.alertId, e.at, e.kind, e.level, e.value, e.comment],
+  );
+  return BigInt(row.id);
 }
 
 /**
@@ -188,29 +253,43 @@ async function readPackedResults(refs: readonly { id: number; ref: number }[], a
   return out;
 }
 
-export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly number[], opts: EvaluateOptions): Promise<EvaluationReport> {
+export async function evaluateAlerts(_db: Db, siteId: number, epochIds: readonly number[], opts: EvaluateOptions): Promise<EvaluationReport> {
   const k = opts.k ?? DEFAULT_SIGNIFICANCE_K;
   const empty = (): EvaluationReport => ({ transitions: [], queuedMailIds: [], digestItems: 0 });
   if (epochIds.length === 0) return empty();
   // Most epochs of most sites meet no enabled rule: that is answered without opening a transaction.
-  const inputs = await readInputs(siteId, epochIds);
+  const inputs = await readInputs(siteId, epochIds, opts.timer);
   if (!inputs) return empty();
   const { rules, epochs, elements, rowAt, prevRow } = inputs;
-  return db.$transaction(
+  // Element heads (name, label) only for the mails that need them, once each.
+  const heads = new Map<number, ElementHead>();
+  const headOf = async (sql: Sql, elementId: number): Promise<ElementHead> => {
+    let h = heads.get(elementId);
+    if (!h) {
+      [h] = await sql.query<ElementHead>(`SELECT id, name, label, kind, "referenceEpochId" FROM "Element" WHERE id = $1`, [elementId]);
+      heads.set(elementId, h);
+    }
+    return h;
+  };
+  const report = await withPgTransaction(
     async (tx) => {
-      await tx.$executeRaw`SELECT pg_advisory_xact_lock(${ALERT_LOCK_CLASS}::int, ${siteId}::int)`;
+      await tx.query(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, [ALERT_LOCK_CLASS, siteId]);
       const report = empty();
-      const site = await tx.site.findUnique({ where: { id: siteId }, select: { id: true, slug: true, name: true, timeZone: true } });
+      const [site] = await tx.query<AlertMailFacts["site"]>(`SELECT id, slug, name, "timeZone" FROM "Site" WHERE id = $1`, [siteId]);
       if (!site) return report;
 
-      const recipients = await tx.mailRecipient.findMany({ where: { siteId } });
-      const openAlerts = await tx.alert.findMany({ where: { siteId, clearedAt: null, ruleId: { in: rules.map((r) => r.id) } }, orderBy: { id: "asc" } });
-      const openBy = new Map<string, Alert>();
-      for (const a of openAlerts) openBy.set(`${a.ruleId}:${a.elementId}`, a);
-      const lastEpochTime = new Map(
-        (await tx.epoch.findMany({ where: { id: { in: openAlerts.map((a) => a.lastEpochId) } }, select: { id: true, time: true } })).map((e) => [e.id, e.time.getTime()]),
+      const recipients = await tx.query<{ email: string; minLevel: string; digest: boolean }>(`SELECT email, "minLevel", digest FROM "MailRecipient" WHERE "siteId" = $1 ORDER BY id`, [siteId]);
+      const openAlerts = await tx.query<Alert & { lastTime: Date | null }>(
+        `SELECT a.*, e."time" AS "lastTime" FROM "Alert" a LEFT JOIN "Epoch" e ON e.id = a."lastEpochId"
+          WHERE a."siteId" = $1 AND a."clearedAt" IS NULL AND a."ruleId" = ANY($2::int[]) ORDER BY a.id`,
+        [siteId, intArray(rules.map((r) => r.id))],
       );
-
+      const openBy = new Map<string, Alert>();
+      const lastEpochTime = new Map<number, number>();
+      for (const a of openAlerts) {
+        openBy.set(`${a.ruleId}:${a.elementId}`, a);
+        if (a.lastTime) lastEpochTime.set(a.lastEpochId, a.lastTime.getTime());
+      }
       // Alerts whose only change is the latest value ("stay"): one UPDATE for all of them at the end.
       const stays: { id: number; lastEpochId: number; value: number; sigma: number | null }[] = [];
       for (const rule of rules) {
@@ -223,8 +302,7 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
         };
         const { base } = parseQuantity(rule.quantity);
         for (const elementId of new Set(rule.elementIds)) {
-          const element = elements.get(elementId);
-          if (!element) continue;
+          if (!elements.has(elementId)) continue;
           let alert: Alert | null = openBy.get(`${rule.id}:${elementId}`) ?? null;
           const watermark = alert ? (lastEpochTime.get(alert.lastEpochId) ?? -Infinity) : -Infinity;
           let state = stateOf(alert);
@@ -246,8 +324,9 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
             }
             const cv = v as ComparedValue;
             const latest = { lastEpochId: ep.id, value: cv.raw, sigma: cv.sigma };
-            const event = async (kind: string, level: TriggerLevel, comment: string | null = null) =>
-              tx.alertEvent.create({ data: { alertId: alert!.id, at: ep.time, kind, level, value: cv.raw, actor: "system", comment } });
+            const event = async (kind: string, level: TriggerLevel, comment: string | null = null) => ({
+              id: await insertEvent(tx, { alertId: alert!.id, at: ep.time, kind, level, value: cv.raw, comment }),
+            });
             const notSignificantNote = `not significant at k = ${k.toFixed(2)}: |value| ≤ k·σ; not counted (rule counts significant values only)`;
             let mailFor: { kind: "open" | "escalate"; from: TriggerLevel | null; level: TriggerLevel; eventId: bigint } | null = null;
 
@@ -257,25 +336,13 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
               // open or watch from nothing: a new alert.
               const level = t.kind === "open" || t.kind === "watch" ? t.level : null;
               if (!level) throw new Error(`unexpected transition ${t.kind} from none`);
-              alert = await tx.alert.create({
-                data: {
-                  siteId,
-                  ruleId: rule.id,
-                  elementId,
-                  level,
-                  peakLevel: level,
-                  openedAt: ep.time,
-                  openedEpochId: ep.id,
-                  ...latest,
-                  isSignificant: t.kind === "open",
-                },
-              });
+              alert = await insertAlert(tx, { siteId, ruleId: rule.id, elementId, level, peakLevel: level, openedAt: ep.time, openedEpochId: ep.id, ...latest, isSignificant: t.kind === "open" });
               const e = await event(t.kind === "open" ? "open" : "not-significant", level, t.kind === "open" ? null : notSignificantNote);
               if (t.kind === "open") mailFor = { kind: "open", from: null, level, eventId: e.id };
               dirty = null;
             } else {
               const a: Alert = alert!;
-              let data: Prisma.AlertUpdateInput = { ...latest };
+              let data: AlertChange = { ...latest };
               if (t.kind === "open") {
                 data = { ...data, level: t.level, peakLevel: higherLevel(a.peakLevel as TriggerLevel, t.level)!, isSignificant: true, openedAt: ep.time, openedEpochId: ep.id };
                 const e = await event("open", t.level);
@@ -296,12 +363,13 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
                 data = { ...data, clearedAt: ep.time };
                 await event("clear", t.from, "fell below review − hysteresis");
               }
-              alert = await tx.alert.update({ where: { id: a.id }, data });
+              alert = await updateAlert(tx, a.id, data);
               dirty = null;
             }
 
             report.transitions.push({ ruleId: rule.id, elementId, epochId: ep.id, alertId: alert?.id ?? null, transition: t });
             if (mailFor && alert && !alert.acknowledgedAt) {
+              const element = await headOf(tx, elementId);
               const facts: AlertMailFacts = {
                 site,
                 element: { id: element.id, name: element.name, label: element.label, kind: element.kind },
@@ -325,20 +393,14 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
           if (dirty && alert) stays.push({ id: alert.id, ...dirty });
         }
       }
-      if (stays.length > 0) {
-        await tx.$executeRawUnsafe(
-          `UPDATE "Alert" a SET "lastEpochId" = u.e, value = u.v, sigma = u.s
-             FROM unnest($1::int[], $2::int[], $3::float8[], $4::float8[]) AS u(id, e, v, s) WHERE a.id = u.id`,
-          intArray(stays.map((x) => x.id)),
-          intArray(stays.map((x) => x.lastEpochId)),
-          floatArray(stays.map((x) => x.value)),
-          floatArray(stays.map((x) => x.sigma)),
-        );
-      }
+      opts.timer?.lap("alerts-evaluate");
+      if (stays.length > 0) await writeStays(tx, stays);
       return report;
     },
-    { timeout: 300_000, maxWait: 60_000 },
+    { timeoutMs: 300_000 },
   );
+  opts.timer?.lap("alerts-write");
+  return report;
 }
 
 /**
@@ -346,7 +408,7 @@ export async function evaluateAlerts(db: Db, siteId: number, epochIds: readonly 
  * (startMailWorker) decides between SMTP and the outbox; if the queue cannot start, alerts are still
  * evaluated from the environment's settings and the mails wait as `queued` for the next worker start.
  */
-export async function runAlerting(siteId: number, epochIds: readonly number[]): Promise<EvaluationReport> {
+export async function runAlerting(siteId: number, epochIds: readonly number[], timer?: PhaseTimer): Promise<EvaluationReport> {
   let config: MailConfig;
   let queueUp = true;
   try {
@@ -356,7 +418,7 @@ export async function runAlerting(siteId: number, epochIds: readonly number[]): 
     config = mailConfigFromEnv();
     queueUp = false;
   }
-  const report = await evaluateAlerts(getDb(), siteId, epochIds, { hasSmtp: config.smtpUrl !== null, publicUrl: config.publicUrl });
+  const report = await evaluateAlerts(getDb(), siteId, epochIds, { hasSmtp: config.smtpUrl !== null, publicUrl: config.publicUrl, timer });
   if (queueUp) {
     await enqueueMails(report.queuedMailIds);
     if (report.digestItems > 0) await scheduleDigest(siteId);

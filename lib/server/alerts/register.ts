@@ -13,7 +13,7 @@ const KEY = Symbol.for("epochal.alerting.registered");
 type Holder = { [KEY]?: boolean };
 
 async function onCommitted(e: EpochsCommitted): Promise<void> {
-  await runAlerting(e.siteId, e.epochIds);
+  await runAlerting(e.siteId, e.epochIds, e.timer);
 }
 
 export function registerAlerting(opts: { startWorker?: boolean } = {}): void {

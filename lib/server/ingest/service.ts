@@ -118,7 +118,7 @@ export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOpt
   const result = await withPgTransaction((tx) => run(tx, input, opts), { timeoutMs: transactionTimeoutMs() });
   opts.timer?.lap("commit");
   const committed = result.epochs.filter((e) => e.outcome !== "unchanged").map((e) => e.id);
-  await afterEpochsCommitted(opts.siteId, committed);
+  await afterEpochsCommitted(opts.siteId, committed, opts.timer);
   opts.timer?.lap("after-commit");
   return result;
 }

@@ -8,7 +8,8 @@
  *   digest     key digest-item:<alertId>:<eventId>:<recipients>, status digest-item: one line of the next
  *              digest for recipients with digest=true; the digest job (digest.ts) collects them
  */
-import type { Prisma } from "../db/generated/client.ts";
+import type { Sql } from "../ingest/pg-tx.ts";
+import { textArray } from "../ingest/sql-arrays.ts";
 import { levelRank, isTriggerLevel, type TriggerLevel } from "../../triggers/rule.ts";
 import { alertBody, alertLines, alertSubject, type AlertMailFacts } from "./compose.ts";
 
@@ -27,8 +28,19 @@ export function recipientsFor(recipients: readonly Recipient[], level: TriggerLe
 
 export type AlertMailResult = { queuedIds: number[]; digestItems: number };
 
+/** A mail row; `ON CONFLICT DO NOTHING` on the idempotency key (evaluating the same epochs twice). Returns the new id, or null. */
+async function insertMail(tx: Sql, m: { siteId: number; alertId: number; idempotencyKey: string; recipients: string[]; subject: string; body: string; status: MailStatus }): Promise<number | null> {
+  const rows = await tx.query<{ id: number }>(
+    `INSERT INTO "MailMessage" ("siteId", "alertId", "idempotencyKey", recipients, subject, body, status)
+     VALUES ($1, $2, $3, $4::text[], $5, $6, $7) ON CONFLICT ("idempotencyKey") DO NOTHING RETURNING id`,
+    [m.siteId, m.alertId, m.idempotencyKey, textArray(m.recipients), m.subject, m.body, m.status],
+  );
+  return rows[0]?.id ?? null;
+}
+
+/** Writes the mail rows of one alert event in the evaluation's transaction. */
 export async function recordAlertMails(
-  tx: Prisma.TransactionClient,
+  tx: Sql,
   opts: { siteId: number; alertId: number; eventId: bigint; facts: AlertMailFacts; recipients: readonly Recipient[]; hasSmtp: boolean },
 ): Promise<AlertMailResult> {
   const { immediate, digest } = recipientsFor(opts.recipients, opts.facts.level);
@@ -37,20 +49,13 @@ export async function recordAlertMails(
   if (immediate.length) {
     const key = `alert:${opts.alertId}:${opts.eventId}:${immediate.join(",")}`;
     const status: MailStatus = opts.hasSmtp ? "queued" : "outbox";
-    const rows = await tx.mailMessage.createManyAndReturn({
-      data: [{ siteId: opts.siteId, alertId: opts.alertId, idempotencyKey: key, recipients: immediate, subject, body: alertBody(opts.facts), status }],
-      skipDuplicates: true,
-      select: { id: true },
-    });
-    if (opts.hasSmtp) out.queuedIds.push(...rows.map((r) => r.id));
+    const id = await insertMail(tx, { siteId: opts.siteId, alertId: opts.alertId, idempotencyKey: key, recipients: immediate, subject, body: alertBody(opts.facts), status });
+    if (opts.hasSmtp && id !== null) out.queuedIds.push(id);
   }
   if (digest.length) {
     const key = `digest-item:${opts.alertId}:${opts.eventId}:${digest.join(",")}`;
-    const r = await tx.mailMessage.createMany({
-      data: [{ siteId: opts.siteId, alertId: opts.alertId, idempotencyKey: key, recipients: digest, subject, body: alertLines(opts.facts).join("\n"), status: "digest-item" }],
-      skipDuplicates: true,
-    });
-    out.digestItems += r.count;
+    const id = await insertMail(tx, { siteId: opts.siteId, alertId: opts.alertId, idempotencyKey: key, recipients: digest, subject, body: alertLines(opts.facts).join("\n"), status: "digest-item" });
+    if (id !== null) out.digestItems += 1;
   }
   return out;
 }

@@ -175,7 +175,12 @@ export interface ComputedEpoch {
   columns: ResultColumns;
   /** Row index in `columns` by `${elementId}:${referenceEpochId}`. */
   index: Map<string, number>;
+  /** The site's enabled elements these rows were computed for (checked against the database in that transaction). */
+  elements: readonly ComputedElement[];
 }
+
+/** An enabled element as the results engine read it: what alert evaluation needs to pick its rows. */
+export type ComputedElement = { id: number; kind: string; referenceEpochId: number | null };
 const COMPUTED_KEEP = 8;
 
 /** The rows computed in this process for that epoch, or undefined. */
@@ -188,7 +193,7 @@ export function forgetComputedResults(epochIds: readonly number[]): void {
   for (const id of epochIds) cache().computed.delete(`${currentDatabaseKey()}#${id}`);
 }
 
-function keepComputed(dbKey: string, rows: ResultColumns): void {
+function keepComputed(dbKey: string, rows: ResultColumns, elements: readonly ComputedElement[]): void {
   const byEpoch = new Map<number, Map<string, number>>();
   for (let i = 0; i < rows.length; i++) {
     let m = byEpoch.get(rows.epochId[i]);
@@ -197,7 +202,7 @@ function keepComputed(dbKey: string, rows: ResultColumns): void {
   }
   const c = cache().computed;
   for (const [epochId, index] of byEpoch) {
-    c.set(`${dbKey}#${epochId}`, { epochId, columns: rows, index });
+    c.set(`${dbKey}#${epochId}`, { epochId, columns: rows, index, elements });
     while (c.size > COMPUTED_KEEP) c.delete(c.keys().next().value as string);
   }
 }
@@ -328,7 +333,7 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
   opts.timer?.lap("results-compute");
   await insertResultRows(tx, rows, opts.newEpochs === true, opts.timer);
   // Live epochs (one or a few per request) are kept for the alert evaluation after commit; backfills are not.
-  if (opts.newEpochs === true && epochIds.length <= 4) keepComputed(dbKey, rows);
+  if (opts.newEpochs === true && epochIds.length <= 4) keepComputed(dbKey, rows, elements);
   return rows.length;
 }
 
