@@ -138,11 +138,11 @@ async function readInputs(siteId: number, epochIds: readonly number[], timer?: P
     const c = computedResultsOf(ep.id);
     const mine: ResultSample[] = [];
     if (c) {
-      const { elementId: eid, epochId: pid, referenceEpochId: rid, status } = c.columns;
-      for (let i = 0; i < eid.length; i++) {
+      const { elementId: eid, epochId: pid, referenceEpochId: rid, status, length } = c.columns;
+      for (let i = 0; i < length; i++) {
         if (pid[i] !== ep.id || refById.get(eid[i]) !== rid[i]) continue;
         const row: ResultSample = { elementId: eid[i], epochId: ep.id, time: ep.time, status: status[i] };
-        for (const k of colsOf) (row as Record<string, unknown>)[k] = c.columns.values[k][i];
+        for (const k of colsOf) (row as Record<string, unknown>)[k] = c.columns.value(k, i);
         mine.push(row);
       }
     }

@@ -57,10 +57,11 @@ const INT4_OID = 23;
  * this reaches the server without any number being printed or parsed; about ten times cheaper on
  * both sides than the text literal for the ~70,000 numbers of a live epoch's results.
  */
-function binaryArray(values: ArrayLike<number | null>, oid: number, width: 4 | 8, put: (dv: DataView, at: number, v: number) => void): Buffer {
+function binaryArray(values: ArrayLike<number | null>, oid: number, width: 4 | 8, put: (dv: DataView, at: number, v: number) => void, nanIsNull = false): Buffer {
   const n = values.length;
+  const isNull = nanIsNull ? (v: number | null): v is null => v === null || Number.isNaN(v) : (v: number | null): v is null => v === null;
   let nulls = 0;
-  for (let i = 0; i < n; i++) if (values[i] === null) nulls++;
+  for (let i = 0; i < n; i++) if (isNull(values[i])) nulls++;
   const buf = Buffer.allocUnsafe(n === 0 ? 12 : 20 + 4 * n + width * (n - nulls));
   const dv = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
   dv.setInt32(0, n === 0 ? 0 : 1);
@@ -72,7 +73,7 @@ function binaryArray(values: ArrayLike<number | null>, oid: number, width: 4 | 8
   let at = 20;
   for (let i = 0; i < n; i++) {
     const v = values[i];
-    if (v === null) {
+    if (isNull(v)) {
       dv.setInt32(at, -1);
       at += 4;
     } else {
@@ -84,12 +85,21 @@ function binaryArray(values: ArrayLike<number | null>, oid: number, width: 4 | 8
   return buf;
 }
 
-/** float8[] in binary form; null elements become NULL, non-finite values are a programmer error (as floatArray). */
-export function floatArrayBinary(values: ArrayLike<number | null>): Buffer {
-  return binaryArray(values, FLOAT8_OID, 8, (dv, at, v) => {
-    if (!Number.isFinite(v)) throw new RangeError(`floatArrayBinary: not a finite number: ${v}`);
-    dv.setFloat64(at, v);
-  });
+/**
+ * float8[] in binary form; null elements become NULL, other non-finite values are a programmer error
+ * (as floatArray). `nanIsNull`: NaN is NULL too (columns kept in a Float64Array, see ResultColumns).
+ */
+export function floatArrayBinary(values: ArrayLike<number | null>, opts: { nanIsNull?: boolean } = {}): Buffer {
+  return binaryArray(
+    values,
+    FLOAT8_OID,
+    8,
+    (dv, at, v) => {
+      if (!Number.isFinite(v)) throw new RangeError(`floatArrayBinary: not a finite number: ${v}`);
+      dv.setFloat64(at, v);
+    },
+    opts.nanIsNull === true,
+  );
 }
 
 /** int4[] in binary form; null elements become NULL; values outside int4 are a programmer error. */

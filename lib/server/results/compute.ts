@@ -58,8 +58,6 @@ async function loadEpochPoints(tx: Sql, epochIds: number[]): Promise<Map<number,
   return out;
 }
 
-const num = (v: number | null | undefined): number | null => (v === undefined || v === null || !Number.isFinite(v) ? null : v);
-
 /** One element at one epoch through the per-element engine, as a result row. */
 function elementRow(el: { id: number; kind: string; mode: string; pointCodes: string[] }, ref: EpochPoints, cur: EpochPoints, head: Pick<ResultRow, "elementId" | "epochId" | "referenceEpochId" | "timeIso">): ResultRow {
   const spec: ElementSpec = { id: String(el.id), kind: el.kind as ElementKind, mode: el.mode as ElementMode, points: el.pointCodes };
@@ -137,27 +135,70 @@ function prepareGroup(els: ElementRow[], ref: EpochPoints): PreparedGroup {
   return { batchable, others, refXY, sigmaRef };
 }
 
-/** Result rows column by column (what the unnest INSERT takes), without one object per row. */
+/**
+ * Result rows column by column (what the unnest INSERT takes), without one object per row: ids in
+ * Int32Arrays, values in Float64Arrays with NaN for "no value" (stored as NULL: a stored value is never
+ * NaN, non-finite results are stored as NULL), so a live epoch's ~50,000 numbers are no ~50,000 heap
+ * objects for the garbage collector. The arrays hold `capacity` slots: read only the first `length`.
+ */
 export class ResultColumns {
-  readonly elementId: number[] = [];
-  readonly epochId: number[] = [];
-  readonly referenceEpochId: number[] = [];
+  length = 0;
+  elementId: Int32Array;
+  epochId: Int32Array;
+  referenceEpochId: Int32Array;
   readonly timeIso: string[] = [];
   readonly status: string[] = [];
-  readonly values: Record<StoredValueKey, (number | null)[]> = {
-    greenMax: [], greenMin: [], maxShear: [], arealStrain: [], rotationDeg: [], azimuthMaxDeg: [], engineering: [],
-    sigmaGreenMax: [], sigmaGreenMin: [], sigmaMaxShear: [], sigmaArealStrain: [], sigmaEngineering: [],
-  };
-  get length(): number {
-    return this.elementId.length;
+  values: Record<StoredValueKey, Float64Array>;
+
+  constructor(capacity = 1024) {
+    const n = Math.max(16, capacity);
+    this.elementId = new Int32Array(n);
+    this.epochId = new Int32Array(n);
+    this.referenceEpochId = new Int32Array(n);
+    this.values = Object.fromEntries(STORED_VALUE_KEYS.map((k) => [k, new Float64Array(n).fill(NaN)])) as Record<StoredValueKey, Float64Array>;
   }
+
+  /** Appends a row's head; its values start as NaN (no value). Returns the row's index. */
+  add(elementId: number, epochId: number, referenceEpochId: number, timeIso: string, status: string): number {
+    const i = this.length;
+    if (i === this.elementId.length) this.grow(2 * i);
+    this.elementId[i] = elementId;
+    this.epochId[i] = epochId;
+    this.referenceEpochId[i] = referenceEpochId;
+    this.timeIso.push(timeIso);
+    this.status.push(status);
+    this.length = i + 1;
+    return i;
+  }
+
   push(r: ResultRow): void {
-    this.elementId.push(r.elementId);
-    this.epochId.push(r.epochId);
-    this.referenceEpochId.push(r.referenceEpochId);
-    this.timeIso.push(r.timeIso);
-    this.status.push(r.status);
-    for (const k of RESULT_KEYS) this.values[k].push(r[k]);
+    const i = this.add(r.elementId, r.epochId, r.referenceEpochId, r.timeIso, r.status);
+    for (const k of RESULT_KEYS) {
+      const v = r[k];
+      if (v !== null) this.values[k][i] = v;
+    }
+  }
+
+  /** The value at row i, or null. */
+  value(k: StoredValueKey, i: number): number | null {
+    const v = this.values[k][i];
+    return Number.isNaN(v) ? null : v;
+  }
+
+  private grow(n: number): void {
+    const int = (a: Int32Array): Int32Array => {
+      const b = new Int32Array(n);
+      b.set(a);
+      return b;
+    };
+    this.elementId = int(this.elementId);
+    this.epochId = int(this.epochId);
+    this.referenceEpochId = int(this.referenceEpochId);
+    for (const k of RESULT_KEYS) {
+      const b = new Float64Array(n).fill(NaN);
+      b.set(this.values[k]);
+      this.values[k] = b;
+    }
   }
 }
 const RESULT_KEYS = STORED_VALUE_KEYS;
@@ -173,8 +214,6 @@ const RESULT_KEYS = STORED_VALUE_KEYS;
 export interface ComputedEpoch {
   epochId: number;
   columns: ResultColumns;
-  /** Row index in `columns` by `${elementId}:${referenceEpochId}`. */
-  index: Map<string, number>;
   /** The site's enabled elements these rows were computed for (checked against the database in that transaction). */
   elements: readonly ComputedElement[];
 }
@@ -194,15 +233,9 @@ export function forgetComputedResults(epochIds: readonly number[]): void {
 }
 
 function keepComputed(dbKey: string, rows: ResultColumns, elements: readonly ComputedElement[]): void {
-  const byEpoch = new Map<number, Map<string, number>>();
-  for (let i = 0; i < rows.length; i++) {
-    let m = byEpoch.get(rows.epochId[i]);
-    if (!m) byEpoch.set(rows.epochId[i], (m = new Map()));
-    m.set(`${rows.elementId[i]}:${rows.referenceEpochId[i]}`, i);
-  }
   const c = cache().computed;
-  for (const [epochId, index] of byEpoch) {
-    c.set(`${dbKey}#${epochId}`, { epochId, columns: rows, index, elements });
+  for (const epochId of new Set(rows.epochId.subarray(0, rows.length))) {
+    c.set(`${dbKey}#${epochId}`, { epochId, columns: rows, elements });
     while (c.size > COMPUTED_KEEP) c.delete(c.keys().next().value as string);
   }
 }
@@ -266,7 +299,7 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
   if (byRef.size === 0) return 0;
   const refIds = new Set(byRef.keys());
   const points = await epochPoints(tx, dbKey, [...new Set([...refIds, ...epochIds])], known, refIds);
-  const rows = new ResultColumns();
+  const rows = new ResultColumns(elements.length * epochIds.length);
   opts.timer?.lap("results-read");
 
   for (const [refId, els] of byRef) {
@@ -310,23 +343,20 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
       for (let s = 0; s < n; s++) {
         if (inBatch[s] === 0) continue;
         const ok = out.status[s] === BATCH_OK;
-        rows.elementId.push(batchable[s].id);
-        rows.epochId.push(epochId);
-        rows.referenceEpochId.push(refId);
-        rows.timeIso.push(timeIso);
-        rows.status.push(ok ? "ok" : "degenerate");
-        v.greenMax.push(ok ? out.greenMax[s] : null);
-        v.greenMin.push(ok ? out.greenMin[s] : null);
-        v.maxShear.push(ok ? out.maxShear[s] : null);
-        v.arealStrain.push(ok ? out.arealStrain[s] : null);
-        v.rotationDeg.push(ok ? out.rotationDeg[s] : null);
-        v.azimuthMaxDeg.push(ok ? num(out.azimuthMaxDeg[s]) : null);
-        v.engineering.push(null);
-        v.sigmaGreenMax.push(ok ? sGMax[s] : null);
-        v.sigmaGreenMin.push(ok ? sGMin[s] : null);
-        v.sigmaMaxShear.push(ok ? sSh[s] : null);
-        v.sigmaArealStrain.push(ok ? sAr[s] : null);
-        v.sigmaEngineering.push(null);
+        const i = rows.add(batchable[s].id, epochId, refId, timeIso, ok ? "ok" : "degenerate");
+        if (!ok) continue;
+        // A non-finite azimuth (no unique direction) is stored as NULL, as on the per-element path.
+        v.greenMax[i] = out.greenMax[s];
+        v.greenMin[i] = out.greenMin[s];
+        v.maxShear[i] = out.maxShear[s];
+        v.arealStrain[i] = out.arealStrain[s];
+        v.rotationDeg[i] = out.rotationDeg[s];
+        const az = out.azimuthMaxDeg[s];
+        v.azimuthMaxDeg[i] = Number.isFinite(az) ? az : NaN;
+        v.sigmaGreenMax[i] = sGMax[s];
+        v.sigmaGreenMin[i] = sGMin[s];
+        v.sigmaMaxShear[i] = sSh[s];
+        v.sigmaArealStrain[i] = sAr[s];
       }
     }
   }
@@ -343,11 +373,11 @@ const RESULT_CHUNK = 50_000;
 async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean, timer?: PhaseTimer): Promise<void> {
   for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
     const j = Math.min(rows.length, i + RESULT_CHUNK);
-    const col = (k: StoredValueKey): Buffer => floatArrayBinary(rows.values[k].slice(i, j));
+    const col = (k: StoredValueKey): Buffer => floatArrayBinary(rows.values[k].subarray(i, j), { nanIsNull: true });
     const params = [
-      intArrayBinary(rows.elementId.slice(i, j)),
-      intArrayBinary(rows.epochId.slice(i, j)),
-      intArrayBinary(rows.referenceEpochId.slice(i, j)),
+      intArrayBinary(rows.elementId.subarray(i, j)),
+      intArrayBinary(rows.epochId.subarray(i, j)),
+      intArrayBinary(rows.referenceEpochId.subarray(i, j)),
       textArray(rows.timeIso.slice(i, j)),
       textArray(rows.status.slice(i, j)),
       ...RESULT_KEYS.map(col),

@@ -10,7 +10,7 @@ describe("afterEpochsCommitted hook", () => {
     const off = onEpochsCommitted(async (e) => {
       if (e.siteId !== s.id) return;
       // Committed: another connection (the shared client, outside the transaction) sees the rows.
-      seen.push({ ...e, visible: await getDb().epoch.count({ where: { id: { in: e.epochIds } } }) });
+      seen.push({ siteId: e.siteId, epochIds: e.epochIds, visible: await getDb().epoch.count({ where: { id: { in: e.epochIds } } }) });
     });
     const failing = onEpochsCommitted(() => {
       throw new Error("a broken listener must not undo the ingest");

@@ -39,6 +39,23 @@ describe("array parameters for bulk statements", () => {
     expect(rows).toEqual([{ i: 7, f: null, s: "a\"b" }, { i: 8, f: 2.25, s: "c\\d" }]);
   });
 
+  it("typed-array columns: Float64Array with NaN as NULL (nanIsNull) and Int32Array come back as sent", async () => {
+    const f = new Float64Array([1.25, Number.NaN, -0, 3e-9, Number.NaN]);
+    const ints = new Int32Array([5, -6, 2147483647]);
+    const [r] = await pgQuery<{ f: (number | null)[]; i: number[]; nulls: number }>(`SELECT $1::float8[] AS f, $2::int[] AS i, (SELECT count(*) FROM unnest($1::float8[]) x WHERE x IS NULL)::int AS nulls`, [
+      floatArrayBinary(f, { nanIsNull: true }),
+      intArrayBinary(ints),
+    ]);
+    expect(r.f).toEqual([1.25, null, -0, 3e-9, null]);
+    expect(r.nulls).toBe(2);
+    expect(r.i).toEqual([5, -6, 2147483647]);
+    // A subarray sends only its own slots.
+    const [s] = await pgQuery<{ f: number[] }>(`SELECT $1::float8[] AS f`, [floatArrayBinary(f.subarray(2, 4), { nanIsNull: true })]);
+    expect(s.f).toEqual([-0, 3e-9]);
+    // Infinity is still refused with nanIsNull.
+    expect(() => floatArrayBinary(new Float64Array([Number.POSITIVE_INFINITY]), { nanIsNull: true })).toThrow(RangeError);
+  });
+
   it("refuses values the columns cannot hold before anything is sent", () => {
     expect(() => floatArrayBinary([1, Number.NaN])).toThrow(RangeError);
     expect(() => floatArrayBinary([Number.POSITIVE_INFINITY])).toThrow(RangeError);
