@@ -9,6 +9,7 @@ import { getDb } from "../db/client.ts";
 import { AppError, isAppError } from "../errors.ts";
 import { hashSecret, SESSION_COOKIE } from "../auth/secrets.ts";
 import { isRole, roleAllows, scopeAllows, type Permission, type Role, type TokenScope } from "../auth/permissions.ts";
+import { PhaseTimer } from "../timing.ts";
 
 export type Actor =
   | { kind: "user"; userId: number; email: string; name: string; isAdmin: boolean; label: string }
@@ -129,24 +130,34 @@ export function errorResponse(err: unknown): Response {
   return Response.json({ error: { code: "internal", message: "Internal error; it has been logged." } }, { status: 500 });
 }
 
-export type SiteHandler<P> = (ctx: { req: Request; params: P; site: SiteRow; actor: Actor }) => Promise<Response>;
+/** `timer` started when the request reached the wrapper; its first lap, "auth", is the authentication and site look-up. */
+export type SiteHandler<P> = (ctx: { req: Request; params: P; site: SiteRow; actor: Actor; timer: PhaseTimer }) => Promise<Response>;
 
 /** A route under /api/v1/sites/{slug}/…: 401 without credentials, 404 unknown site, 403 without the permission. */
 export function siteRoute<P extends Params & { slug: string }>(permission: Permission, handler: SiteHandler<P>) {
   return async (req: Request, ctx: NextCtx): Promise<Response> => {
+    const timer = new PhaseTimer();
     try {
       const params = (await ctx.params) as P;
-      const actor = await actorFromRequest(req);
+      // The caller and the site are looked up side by side; the answers keep their order (401 before 404/403).
+      const [who, where] = await Promise.allSettled([
+        actorFromRequest(req),
+        getDb().site.findUnique({ where: { slug: String(params.slug) }, select: { id: true, slug: true, name: true, timeZone: true } }),
+      ]);
+      if (who.status === "rejected") throw who.reason;
+      const actor = who.value;
       if (!actor) throw new AppError("unauthenticated", "Sign in or send `Authorization: Bearer <token>`.");
       assertSameOrigin(req, actor);
-      const site = await getDb().site.findUnique({ where: { slug: String(params.slug) }, select: { id: true, slug: true, name: true, timeZone: true } });
+      if (where.status === "rejected") throw where.reason;
+      const site = where.value;
       // Unknown site and no access look the same to a token of another site: 403, never a hint.
       if (!site) {
         if (actor.kind === "token") throw new AppError("forbidden", "This token belongs to another site.");
         throw new AppError("not_found", `No site "${params.slug}".`);
       }
       await assertSitePermission(actor, site, permission);
-      return await handler({ req, params, site, actor });
+      timer.lap("auth");
+      return await handler({ req, params, site, actor, timer });
     } catch (err) {
       return errorResponse(err);
     }

@@ -12,12 +12,10 @@ import { parseIngestRequest } from "@/lib/server/ingest/request.ts";
 import { ingestEpochs } from "@/lib/server/ingest/service.ts";
 import { listEpochs } from "@/lib/server/ingest/read.ts";
 import { epochListQuerySchema, queryIssues } from "@/lib/server/schemas/ingest.ts";
-import { PhaseTimer } from "@/lib/server/timing.ts";
 
 export const dynamic = "force-dynamic";
 
-export const POST = siteRoute("ingest", async ({ req, site, actor }) => {
-  const timer = new PhaseTimer();
+export const POST = siteRoute("ingest", async ({ req, site, actor, timer }) => {
   const parsed = await parseIngestRequest(req, site.id);
   timer.lap("parse");
   const r = await ingestEpochs(parsed.epochs, { siteId: site.id, actor: actor.label, revise: parsed.revise, source: "api", timer });
