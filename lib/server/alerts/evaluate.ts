@@ -90,7 +90,7 @@ type ResultSample = Pick<ElementResult, "elementId" | "epochId" | "time" | "stat
  */
 async function readInputs(siteId: number, epochIds: readonly number[], timer?: PhaseTimer) {
   const ids = intArray([...epochIds]);
-  const [rules, epochs, heads] = await Promise.all([
+  const [rules, epochs, heads, sites, recipients] = await Promise.all([
     pgQuery<TriggerRule>(`SELECT * FROM "TriggerRule" WHERE "siteId" = $1 AND enabled ORDER BY id`, [siteId]),
     pgQuery<{ id: number; time: Date }>(`SELECT id, "time" FROM "Epoch" WHERE "siteId" = $1 AND id = ANY($2::int[]) AND "isCurrent" ORDER BY "time", id`, [siteId, ids]),
     pgQuery<{ siteRef: number | null; firstEpoch: number | null; prevId: number | null; prevTime: Date | null }>(
@@ -106,6 +106,9 @@ async function readInputs(siteId: number, epochIds: readonly number[], timer?: P
         WHERE s.id = $1`,
       [siteId, ids],
     ),
+    // For the mails; recipients change rarely and a mail row records them as they were read here.
+    pgQuery<AlertMailFacts["site"]>(`SELECT id, slug, name, "timeZone" FROM "Site" WHERE id = $1`, [siteId]),
+    pgQuery<{ email: string; minLevel: string; digest: boolean }>(`SELECT email, "minLevel", digest FROM "MailRecipient" WHERE "siteId" = $1 ORDER BY id`, [siteId]),
   ]);
   timer?.lap("alerts-read");
   if (rules.length === 0 || epochs.length === 0) return null;
@@ -174,7 +177,7 @@ async function readInputs(siteId: number, epochIds: readonly number[], timer?: P
     for (const p of prev) prevRow.set(p.elementId, p);
   }
   timer?.lap("alerts-results");
-  return { rules, epochs, elements, rowAt, prevRow };
+  return { rules, epochs, elements, rowAt, prevRow, site: sites[0] ?? null, recipients };
 }
 
 /** Alerts whose only change is the latest value: one UPDATE for all of them. */
@@ -260,7 +263,8 @@ export async function evaluateAlerts(_db: Db, siteId: number, epochIds: readonly
   // Most epochs of most sites meet no enabled rule: that is answered without opening a transaction.
   const inputs = await readInputs(siteId, epochIds, opts.timer);
   if (!inputs) return empty();
-  const { rules, epochs, elements, rowAt, prevRow } = inputs;
+  const { rules, epochs, elements, rowAt, prevRow, site, recipients } = inputs;
+  if (!site) return empty();
   // Element heads (name, label) only for the mails that need them, once each.
   const heads = new Map<number, ElementHead>();
   const headOf = async (sql: Sql, elementId: number): Promise<ElementHead> => {
@@ -275,23 +279,23 @@ export async function evaluateAlerts(_db: Db, siteId: number, epochIds: readonly
     async (tx) => {
       await tx.query(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, [ALERT_LOCK_CLASS, siteId]);
       const report = empty();
-      const [site] = await tx.query<AlertMailFacts["site"]>(`SELECT id, slug, name, "timeZone" FROM "Site" WHERE id = $1`, [siteId]);
-      if (!site) return report;
-
-      const recipients = await tx.query<{ email: string; minLevel: string; digest: boolean }>(`SELECT email, "minLevel", digest FROM "MailRecipient" WHERE "siteId" = $1 ORDER BY id`, [siteId]);
       const openAlerts = await tx.query<Alert & { lastTime: Date | null }>(
         `SELECT a.*, e."time" AS "lastTime" FROM "Alert" a LEFT JOIN "Epoch" e ON e.id = a."lastEpochId"
           WHERE a."siteId" = $1 AND a."clearedAt" IS NULL AND a."ruleId" = ANY($2::int[]) ORDER BY a.id`,
         [siteId, intArray(rules.map((r) => r.id))],
       );
-      const openBy = new Map<string, Alert>();
+      /** Open alerts by rule id, then element id. */
+      const openBy = new Map<number, Map<number, Alert>>();
       const lastEpochTime = new Map<number, number>();
       for (const a of openAlerts) {
-        openBy.set(`${a.ruleId}:${a.elementId}`, a);
+        let m = openBy.get(a.ruleId);
+        if (!m) openBy.set(a.ruleId, (m = new Map()));
+        m.set(a.elementId, a);
         if (a.lastTime) lastEpochTime.set(a.lastEpochId, a.lastTime.getTime());
       }
       // Alerts whose only change is the latest value ("stay"): one UPDATE for all of them at the end.
       const stays: { id: number; lastEpochId: number; value: number; sigma: number | null }[] = [];
+      const rowsOfEpoch = epochs.map((ep) => rowAt.get(ep.id));
       for (const rule of rules) {
         if (!isRuleQuantity(rule.quantity)) continue;
         const spec: RuleSpec = {
@@ -301,18 +305,20 @@ export async function evaluateAlerts(_db: Db, siteId: number, epochIds: readonly
           significantOnly: rule.significantOnly,
         };
         const { base } = parseQuantity(rule.quantity);
+        const openOfRule = openBy.get(rule.id);
         for (const elementId of new Set(rule.elementIds)) {
           if (!elements.has(elementId)) continue;
-          let alert: Alert | null = openBy.get(`${rule.id}:${elementId}`) ?? null;
+          let alert: Alert | null = openOfRule?.get(elementId) ?? null;
           const watermark = alert ? (lastEpochTime.get(alert.lastEpochId) ?? -Infinity) : -Infinity;
           let state = stateOf(alert);
           const p = prevRow.get(elementId);
           let prev: QuantitySample | null = p ? sampleOf(p, base) : null;
           let dirty: { lastEpochId: number; value: number; sigma: number | null } | null = null;
 
-          for (const ep of epochs) {
+          for (let e = 0; e < epochs.length; e++) {
+            const ep = epochs[e];
             if (ep.time.getTime() <= watermark) continue;
-            const row = rowAt.get(ep.id)?.get(elementId);
+            const row = rowsOfEpoch[e]?.get(elementId);
             if (!row) continue;
             const sample = sampleOf(row, base);
             const v = comparedValueOf(rule.quantity, sample, prev, k);
