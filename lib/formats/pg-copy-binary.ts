@@ -1,5 +1,5 @@
 /**
- * Reader of PostgreSQL's binary COPY format (PostgreSQL documentation, COPY, "Binary Format"):
+ * Reader and writer of PostgreSQL's binary COPY format (PostgreSQL documentation, COPY, "Binary Format"):
  *
  *   header   11-byte signature "PGCOPY\n\377\r\n\0", int32 flags, int32 extension length, extension
  *   tuple    int16 field count, then per field int32 byte length (−1 = NULL) and the bytes
@@ -50,4 +50,97 @@ export function parseCopyBinary(bytes: Uint8Array): (Uint8Array | null)[][] {
 export function readInt4(field: Uint8Array): number {
   if (field.byteLength !== 4) throw new RangeError(`binary COPY: int4 field of ${field.byteLength} bytes`);
   return new DataView(field.buffer, field.byteOffset, 4).getInt32(0, false);
+}
+
+/** One column of a binary COPY stream: the values of rows [from, to) are written. */
+export type CopyColumn =
+  | { type: "int4"; values: ArrayLike<number> }
+  /** NaN is written as NULL (columns kept in Float64Arrays); other non-finite values are refused. */
+  | { type: "float8"; values: ArrayLike<number> }
+  | { type: "text"; values: readonly (string | null)[] }
+  /** ISO 8601 UTC times with at most millisecond precision (Date.prototype.toISOString's form). */
+  | { type: "timestamptz"; values: readonly string[] };
+
+/** Milliseconds from 1970-01-01 to PostgreSQL's epoch, 2000-01-01T00:00:00Z. */
+const PG_EPOCH_MS = 946_684_800_000;
+
+/**
+ * Writes rows [from, to) of the columns as one binary COPY stream (header, tuples, trailer), the
+ * input of `COPY table (columns…) FROM STDIN (FORMAT binary)`. Field bytes are the types' binary
+ * receive input: int4 4 bytes, float8 IEEE 754 8 bytes, text UTF-8, timestamptz int64 microseconds
+ * since 2000-01-01 UTC; all big-endian. Throws RangeError on a value the column type cannot hold.
+ */
+export function writeCopyBinary(columns: readonly CopyColumn[], from: number, to: number): Uint8Array {
+  const n = Math.max(0, to - from);
+  const utf8 = new TextEncoder();
+  // Text fields encoded once, and timestamps converted once per distinct string (a live epoch's rows share one time).
+  const encoded: (Uint8Array | null)[][] = columns.map((c) => (c.type === "text" ? Array.from({ length: n }, (_, i) => (c.values[from + i] === null ? null : utf8.encode(c.values[from + i] as string))) : []));
+  const micros = new Map<string, bigint>();
+  const microsOf = (iso: string): bigint => {
+    let v = micros.get(iso);
+    if (v === undefined) {
+      const ms = Date.parse(iso);
+      if (!Number.isFinite(ms) || /\.\d{4,}/.test(iso)) throw new RangeError(`binary COPY: not a millisecond ISO time: ${iso}`);
+      v = BigInt(ms - PG_EPOCH_MS) * 1000n;
+      micros.set(iso, v);
+    }
+    return v;
+  };
+  let size = 11 + 4 + 4 + 2;
+  for (let c = 0; c < columns.length; c++) {
+    const col = columns[c];
+    if (col.type === "int4") size += 8 * n;
+    else if (col.type === "timestamptz") size += 12 * n;
+    else if (col.type === "float8") for (let i = 0; i < n; i++) size += Number.isNaN(col.values[from + i]) ? 4 : 12;
+    else for (const b of encoded[c]) size += 4 + (b === null ? 0 : b.byteLength);
+  }
+  size += 2 * n;
+  const out = new Uint8Array(size);
+  const dv = new DataView(out.buffer);
+  out.set(SIGNATURE, 0);
+  dv.setUint32(11, 0);
+  dv.setUint32(15, 0);
+  let at = 19;
+  for (let i = 0; i < n; i++) {
+    const r = from + i;
+    dv.setInt16(at, columns.length);
+    at += 2;
+    for (let c = 0; c < columns.length; c++) {
+      const col = columns[c];
+      if (col.type === "int4") {
+        const v = col.values[r];
+        if (!Number.isInteger(v) || v < -2147483648 || v > 2147483647) throw new RangeError(`binary COPY: not an int4: ${v}`);
+        dv.setInt32(at, 4);
+        dv.setInt32(at + 4, v);
+        at += 8;
+      } else if (col.type === "float8") {
+        const v = col.values[r];
+        if (Number.isNaN(v)) {
+          dv.setInt32(at, -1);
+          at += 4;
+          continue;
+        }
+        if (!Number.isFinite(v)) throw new RangeError(`binary COPY: not a finite number: ${v}`);
+        dv.setInt32(at, 8);
+        dv.setFloat64(at + 4, v);
+        at += 12;
+      } else if (col.type === "timestamptz") {
+        dv.setInt32(at, 8);
+        dv.setBigInt64(at + 4, microsOf(col.values[r]));
+        at += 12;
+      } else {
+        const b = encoded[c][i];
+        if (b === null) {
+          dv.setInt32(at, -1);
+          at += 4;
+        } else {
+          dv.setInt32(at, b.byteLength);
+          out.set(b, at + 4);
+          at += 4 + b.byteLength;
+        }
+      }
+    }
+  }
+  dv.setInt16(at, -1);
+  return out;
 }

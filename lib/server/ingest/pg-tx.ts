@@ -14,6 +14,8 @@ import { databaseUrl } from "../db/client.ts";
 /** The one method the ingest and results code needs: a parameterised statement, rows back. */
 export interface Sql {
   query<R>(text: string, values?: readonly unknown[]): Promise<R[]>;
+  /** `COPY … FROM STDIN` with `data` as its whole input (lib/formats/pg-copy-binary.ts writes binary streams); answers the rows copied. */
+  copyFrom(text: string, data: Uint8Array): Promise<number>;
 }
 
 const KEY = Symbol.for("epochal.ingest.pgPools");
@@ -46,6 +48,10 @@ export async function withPgTransaction<T>(fn: (sql: Sql) => Promise<T>, opts: {
   const client = await pool(databaseUrl()).connect();
   const sql: Sql = {
     query: async <R>(text: string, values?: readonly unknown[]): Promise<R[]> => (await client.query(text, values as unknown[] | undefined)).rows as R[],
+    copyFrom: (text: string, data: Uint8Array): Promise<number> =>
+      new Promise((resolve, reject) => {
+        client.query(new CopyInQuery(text, data, (err, res) => (err ? reject(err) : resolve(res?.rowCount ?? 0))));
+      }),
   };
   let broken = false;
   try {
@@ -69,6 +75,23 @@ export async function withPgTransaction<T>(fn: (sql: Sql) => Promise<T>, opts: {
 /** One statement outside any transaction, on the same pool (reads of committed rows on hot paths). */
 export async function pgQuery<R>(text: string, values?: readonly unknown[]): Promise<R[]> {
   return (await pool(databaseUrl()).query(text, values as unknown[] | undefined)).rows as R[];
+}
+
+/** Sends a prepared byte stream as the data of one `COPY … FROM STDIN` (pg's Query refuses a COPY IN without a stream). */
+class CopyInQuery extends pg.Query {
+  constructor(
+    text: string,
+    private readonly data: Uint8Array,
+    callback: (err: Error | undefined, result?: { rowCount: number | null }) => void,
+  ) {
+    super(text, callback as never);
+  }
+  handleCopyInResponse(connection: { sendCopyFromChunk(chunk: Buffer): void; endCopyFrom(): void }): void {
+    const CHUNK = 1 << 20;
+    for (let at = 0; at < this.data.byteLength; at += CHUNK)
+      connection.sendCopyFromChunk(Buffer.from(this.data.buffer, this.data.byteOffset + at, Math.min(CHUNK, this.data.byteLength - at)));
+    connection.endCopyFrom();
+  }
 }
 
 /** Collects the CopyData messages of a `COPY … TO STDOUT` (pg's Query discards them). */

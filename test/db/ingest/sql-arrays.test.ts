@@ -6,7 +6,8 @@
  */
 import { afterAll, describe, expect, it } from "vitest";
 import { floatArray, floatArrayBinary, intArray, intArrayBinary, textArray } from "../../../lib/server/ingest/sql-arrays.ts";
-import { closeIngestPools, pgQuery } from "../../../lib/server/ingest/pg-tx.ts";
+import { closeIngestPools, pgQuery, withPgTransaction } from "../../../lib/server/ingest/pg-tx.ts";
+import { writeCopyBinary } from "../../../lib/formats/pg-copy-binary.ts";
 
 afterAll(async () => {
   await closeIngestPools();
@@ -54,6 +55,33 @@ describe("array parameters for bulk statements", () => {
     expect(s.f).toEqual([-0, 3e-9]);
     // Infinity is still refused with nanIsNull.
     expect(() => floatArrayBinary(new Float64Array([Number.POSITIVE_INFINITY]), { nanIsNull: true })).toThrow(RangeError);
+  });
+
+  it("binary COPY FROM STDIN (writeCopyBinary): every value comes back as written, NaN as NULL, text and times exact", async () => {
+    const times = ["2024-02-29T23:59:59.999Z", "1999-12-31T23:59:59.999Z", "2000-01-01T00:00:00.000Z"];
+    const got = await withPgTransaction(async (sql) => {
+      await sql.query(`CREATE TEMP TABLE copy_check (i int4, f float8, t text, ts timestamptz) ON COMMIT DROP`);
+      const data = writeCopyBinary(
+        [
+          { type: "int4", values: Int32Array.from([2147483647, -2147483648, 0]) },
+          { type: "float8", values: Float64Array.from([-0, Number.NaN, Number.MAX_VALUE]) },
+          { type: "text", values: ["ok", null, "Δ, \"quoted\"\ttab"] },
+          { type: "timestamptz", values: times },
+        ],
+        0,
+        3,
+      );
+      const n = await sql.copyFrom(`COPY copy_check (i, f, t, ts) FROM STDIN (FORMAT binary)`, data);
+      const rows = await sql.query<{ i: number; f: number | null; neg: boolean; t: string | null; ts: Date }>(`SELECT i, f, f::text = '-0' AS neg, t, ts FROM copy_check ORDER BY i DESC`);
+      return { n, rows };
+    });
+    expect(got.n).toBe(3);
+    expect(got.rows.map((r) => [r.i, r.f, r.t, r.ts.toISOString()])).toEqual([
+      [2147483647, -0, "ok", times[0]],
+      [0, Number.MAX_VALUE, "Δ, \"quoted\"\ttab", times[2]],
+      [-2147483648, null, null, times[1]],
+    ]);
+    expect(got.rows[0].neg).toBe(true);
   });
 
   it("refuses values the columns cannot hold before anything is sent", () => {
