@@ -30,7 +30,6 @@ import { enqueueMails, scheduleDigest, startMailWorker } from "../mail/queue.ts"
 import { pgQuery, withPgTransaction, type Sql } from "../ingest/pg-tx.ts";
 import { computedResultsOf, type ComputedEpoch } from "../results/compute.ts";
 import type { PhaseTimer } from "../timing.ts";
-import type { StoredValueKey } from "../../strain/stored-values.ts";
 import { floatArray, intArray, intArrayBinary, textArray } from "../ingest/sql-arrays.ts";
 
 /** Advisory lock class of alert evaluation (the second key is the site id). */
@@ -71,6 +70,9 @@ function stateOf(a: Pick<Alert, "clearedAt" | "level" | "isSignificant"> | null)
 function responseFor(rule: { responseReview: string; responseAlert: string; responseLimit: string }, level: TriggerLevel): string {
   return level === "review" ? rule.responseReview : level === "alert" ? rule.responseAlert : rule.responseLimit;
 }
+
+/** NaN (no value in a typed result column) as null. */
+const nn = (x: number): number | null => (x === x ? x : null);
 
 type ElementHead = { id: number; name: string; label: string; kind: string; referenceEpochId: number | null };
 /** What evaluation needs of an element to pick its results; the full head (name, label) only when a mail is written. */
@@ -136,17 +138,32 @@ async function readInputs(siteId: number, epochIds: readonly number[], timer?: P
   // Epochs this process has just computed come from memory (every wanted element's row there); the others from the database.
   const rows: ResultSample[] = [];
   const fromDb: { id: number; time: Date }[] = [];
-  const colsOf = bases.flatMap((b) => [VALUE_FIELD[b].value, VALUE_FIELD[b].sigma]) as StoredValueKey[];
   for (const ep of at) {
     const c = computedResultsOf(ep.id);
     const mine: ResultSample[] = [];
     if (c) {
       const { elementId: eid, epochId: pid, referenceEpochId: rid, status, length } = c.columns;
+      // Every compared column in one literal (one object shape for all rows), read from the typed columns (NaN: no value).
+      const v = c.columns.values;
+      const [gMax, sgMax, gMin, sgMin, sh, ssh, ar, sar, en, sen] = [v.greenMax, v.sigmaGreenMax, v.greenMin, v.sigmaGreenMin, v.maxShear, v.sigmaMaxShear, v.arealStrain, v.sigmaArealStrain, v.engineering, v.sigmaEngineering];
       for (let i = 0; i < length; i++) {
         if (pid[i] !== ep.id || refById.get(eid[i]) !== rid[i]) continue;
-        const row: ResultSample = { elementId: eid[i], epochId: ep.id, time: ep.time, status: status[i] };
-        for (const k of colsOf) (row as Record<string, unknown>)[k] = c.columns.value(k, i);
-        mine.push(row);
+        mine.push({
+          elementId: eid[i],
+          epochId: ep.id,
+          time: ep.time,
+          status: status[i],
+          greenMax: nn(gMax[i]),
+          sigmaGreenMax: nn(sgMax[i]),
+          greenMin: nn(gMin[i]),
+          sigmaGreenMin: nn(sgMin[i]),
+          maxShear: nn(sh[i]),
+          sigmaMaxShear: nn(ssh[i]),
+          arealStrain: nn(ar[i]),
+          sigmaArealStrain: nn(sar[i]),
+          engineering: nn(en[i]),
+          sigmaEngineering: nn(sen[i]),
+        });
       }
     }
     if (c && mine.length === refs.length) rows.push(...mine);

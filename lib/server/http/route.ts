@@ -10,6 +10,7 @@ import { AppError, isAppError } from "../errors.ts";
 import { hashSecret, SESSION_COOKIE } from "../auth/secrets.ts";
 import { isRole, roleAllows, scopeAllows, type Permission, type Role, type TokenScope } from "../auth/permissions.ts";
 import { PhaseTimer } from "../timing.ts";
+import { pgQuery } from "../ingest/pg-tx.ts";
 
 export type Actor =
   | { kind: "user"; userId: number; email: string; name: string; isAdmin: boolean; label: string }
@@ -52,12 +53,15 @@ async function actorFromRequest(req: Request): Promise<Actor | null> {
   if (auth) {
     const m = /^Bearer\s+(\S+)$/i.exec(auth);
     if (!m) throw new AppError("unauthenticated", "Authorization header must be `Bearer <token>`.");
-    const db = getDb();
-    const t = await db.apiToken.findUnique({ where: { tokenHash: hashSecret(m[1]) } });
+    // Every ingest post comes through here: plain pg (lib/server/ingest/pg-tx.ts), not Prisma's per-call cost.
+    const [t] = await pgQuery<{ id: number; siteId: number; scope: string; prefix: string; revokedAt: Date | null; lastUsedAt: Date | null }>(
+      `SELECT id, "siteId", scope, prefix, "revokedAt", "lastUsedAt" FROM "ApiToken" WHERE "tokenHash" = $1`,
+      [hashSecret(m[1])],
+    );
     if (!t || t.revokedAt) throw new AppError("unauthenticated", "Unknown or revoked API token.");
     // Last use: at most one write a minute per token, so a busy logger does not hammer the row.
     if (!t.lastUsedAt || Date.now() - t.lastUsedAt.getTime() > 60_000)
-      await db.apiToken.update({ where: { id: t.id }, data: { lastUsedAt: new Date() } }).catch(() => undefined);
+      await getDb().apiToken.update({ where: { id: t.id }, data: { lastUsedAt: new Date() } }).catch(() => undefined);
     return { kind: "token", tokenId: t.id, siteId: t.siteId, scope: t.scope as TokenScope, label: `token:${t.prefix}` };
   }
   return userFromSessionSecret(readCookie(req, SESSION_COOKIE));
@@ -142,7 +146,7 @@ export function siteRoute<P extends Params & { slug: string }>(permission: Permi
       // The caller and the site are looked up side by side; the answers keep their order (401 before 404/403).
       const [who, where] = await Promise.allSettled([
         actorFromRequest(req),
-        getDb().site.findUnique({ where: { slug: String(params.slug) }, select: { id: true, slug: true, name: true, timeZone: true } }),
+        pgQuery<SiteRow>(`SELECT id, slug, name, "timeZone" FROM "Site" WHERE slug = $1`, [String(params.slug)]).then((r) => r[0] ?? null),
       ]);
       if (who.status === "rejected") throw who.reason;
       const actor = who.value;
