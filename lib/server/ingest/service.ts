@@ -87,11 +87,20 @@ interface ResolvedObservation {
  * round-trip form (exact: equal doubles give equal text). σ as stored (defaults applied), so the
  * same epoch from CSV, JSON or GeoJSON hashes the same. The time is not part of it.
  */
+/** String(v), remembering the last value and its text (String(v) is the same text for the same double). */
+function lastText(): (v: number) => string {
+  let last = Number.NaN;
+  let text = "NaN";
+  return (v) => (Object.is(v, last) ? text : ((last = v), (text = String(v))));
+}
+
 export function epochContentHash(obs: readonly ResolvedObservation[]): string {
   const sorted = [...obs].sort((a, b) => (a.point < b.point ? -1 : a.point > b.point ? 1 : 0));
   // One text, hashed once (the same bytes as one update per line, without a native call per line).
+  // σ repeats from row to row (site defaults): each column's last text is reused for the same value.
+  const se = lastText(), sn = lastText(), sh = lastText();
   let text = "";
-  for (const o of sorted) text += `${o.point}\t${o.east}\t${o.north}\t${o.height}\t${o.sigmaEast}\t${o.sigmaNorth}\t${o.sigmaHeight}\n`;
+  for (const o of sorted) text += `${o.point}\t${o.east}\t${o.north}\t${o.height}\t${se(o.sigmaEast)}\t${sn(o.sigmaNorth)}\t${sh(o.sigmaHeight)}\n`;
   return createHash("sha256").update(text, "utf8").digest("hex");
 }
 
@@ -238,7 +247,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
       siteId,
       plan.map((p) => {
         const e = out[p.index] as StoredEpoch;
-        return { id: e.id, time: e.time, points: new Map(resolved[p.index].map((o) => [o.point, o])) };
+        return { id: e.id, time: e.time, points: () => new Map(resolved[p.index].map((o) => [o.point, o])) };
       }),
       { newEpochs: true, timer: opts.timer },
     );

@@ -241,8 +241,8 @@ function keepComputed(dbKey: string, rows: ResultColumns, elements: readonly Com
   }
 }
 
-/** An epoch to compute: its id, or (from the ingest service) its id, time and points as just stored. */
-export type EpochToCompute = number | { id: number; time: string | Date; points: EpochPoints };
+/** An epoch to compute: its id, or (from the ingest service) its id, time and points as just stored (or a function making them). */
+export type EpochToCompute = number | { id: number; time: string | Date; points: EpochPoints | (() => EpochPoints) };
 
 /**
  * Computes and stores the results of every enabled element of `siteId` at each of `epochs`.
@@ -278,7 +278,8 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
   for (const e of epochs) {
     if (typeof e === "number") unknownTimes.push(e);
     else {
-      known.set(e.id, e.points);
+      // A function is called only here, after the site is known to have elements (a backfill of a site without any builds no maps).
+      known.set(e.id, typeof e.points === "function" ? e.points() : e.points);
       times.set(e.id, typeof e.time === "string" ? new Date(e.time).toISOString() : e.time.toISOString());
     }
   }
