@@ -34,7 +34,7 @@ import { closeIngestPools } from "../../lib/server/ingest/pg-tx.ts";
 import { parseEpochCsvInput } from "../../lib/server/ingest/csv-input.ts";
 import { triangulatePlan } from "../../lib/network/triangulate.ts";
 import { mulberry32 } from "../../seed/random.ts";
-import { parseServerTiming } from "../../lib/server/timing.ts";
+import { PhaseTimer, parseServerTiming } from "../../lib/server/timing.ts";
 import { serverNodeOptions } from "../../lib/server/cli/serve-core.ts";
 
 const args = process.argv.slice(2);
@@ -165,6 +165,8 @@ async function main(): Promise<void> {
       if (r.status !== 0) throw new Error(`psql \\copy failed: ${r.stderr}`);
       return (performance.now() - t) / 1000;
     };
+    /** The ingest service's own phases (PhaseTimer), summed over every backfill request. */
+    const backfillPhaseMs = new Map<string, number>();
     const runIngest = async (from: number, to: number): Promise<{ s: number; parseS: number; rows: number }> => {
       const rnd = mulberry32(1000 + from);
       let s = 0;
@@ -178,7 +180,9 @@ async function main(): Promise<void> {
         const parsed = parseEpochCsvInput(text);
         if (!parsed.ok) throw new Error(JSON.stringify(parsed.errors.slice(0, 3)));
         const tp = performance.now();
-        await ingestEpochs(parsed.epochs, { siteId: siteIngest.id, actor: "bench", source: "bench" });
+        const timer = new PhaseTimer();
+        await ingestEpochs(parsed.epochs, { siteId: siteIngest.id, actor: "bench", source: "bench", timer });
+        for (const p of timer.phases()) backfillPhaseMs.set(p.name, (backfillPhaseMs.get(p.name) ?? 0) + p.ms);
         s += (performance.now() - t) / 1000;
         parseS += (tp - t) / 1000;
         rows += parts.length - 1;
@@ -200,6 +204,8 @@ async function main(): Promise<void> {
     rmSync(f1);
     rmSync(f2);
     const backfillRate = (i1.rows + i2.rows) / (i1.s + i2.s);
+    out.backfillPhaseS = Object.fromEntries([...backfillPhaseMs].map(([n, ms]) => [n, Number((ms / 1000).toFixed(2))]));
+    log(`  ingest phases, seconds over both halves: ${Object.entries(out.backfillPhaseS).map(([n, v]) => `${n} ${v}`).join(" · ")}`);
     const copyRate = (rowsCopy1 + rowsCopy2) / (c1 + c2);
     out.scale = scale;
     out.backfillObservations = i1.rows + i2.rows;

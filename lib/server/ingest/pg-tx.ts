@@ -15,7 +15,7 @@ import { databaseUrl } from "../db/client.ts";
 export interface Sql {
   query<R>(text: string, values?: readonly unknown[]): Promise<R[]>;
   /** `COPY … FROM STDIN` with `data` as its whole input (lib/formats/pg-copy-binary.ts writes binary streams); answers the rows copied. */
-  copyFrom(text: string, data: Uint8Array): Promise<number>;
+  copyFrom(text: string, data: Uint8Array, onSent?: () => void): Promise<number>;
 }
 
 const KEY = Symbol.for("epochal.ingest.pgPools");
@@ -48,9 +48,9 @@ export async function withPgTransaction<T>(fn: (sql: Sql) => Promise<T>, opts: {
   const client = await pool(databaseUrl()).connect();
   const sql: Sql = {
     query: async <R>(text: string, values?: readonly unknown[]): Promise<R[]> => (await client.query(text, values as unknown[] | undefined)).rows as R[],
-    copyFrom: (text: string, data: Uint8Array): Promise<number> =>
+    copyFrom: (text: string, data: Uint8Array, onSent?: () => void): Promise<number> =>
       new Promise((resolve, reject) => {
-        client.query(new CopyInQuery(text, data, (err, res) => (err ? reject(err) : resolve(res?.rowCount ?? 0))));
+        client.query(new CopyInQuery(text, data, (err, res) => (err ? reject(err) : resolve(res?.rowCount ?? 0)), onSent));
       }),
   };
   let broken = false;
@@ -83,6 +83,8 @@ class CopyInQuery extends pg.Query {
     text: string,
     private readonly data: Uint8Array,
     callback: (err: Error | undefined, result?: { rowCount: number | null }) => void,
+    /** Called once the data is handed to the socket: the server is storing it while the caller goes on. */
+    private readonly onSent?: () => void,
   ) {
     super(text, callback as never);
   }
@@ -91,6 +93,8 @@ class CopyInQuery extends pg.Query {
     for (let at = 0; at < this.data.byteLength; at += CHUNK)
       connection.sendCopyFromChunk(Buffer.from(this.data.buffer, this.data.byteOffset + at, Math.min(CHUNK, this.data.byteLength - at)));
     connection.endCopyFrom();
+    // Deferred past this protocol callback, so that an exception in it cannot break the connection's parser.
+    if (this.onSent) setImmediate(this.onSent);
   }
 }
 

@@ -178,7 +178,10 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
       }),
     ),
   );
-  const hashes = resolved.map((r) => epochContentHash(r));
+  // Hashes are computed here only where an epoch at that time exists (to compare); the others while
+  // the server stores the observations (below), since only the Epoch row needs them.
+  const hashes: (string | null)[] = input.map(() => null);
+  const hashOf = (i: number): string => (hashes[i] ??= epochContentHash(resolved[i]));
   const existing = await tx.query<{ id: number; time: Date; contentHash: string; revision: number; n: number; maxRevision: number }>(
     `SELECT e.id, e.time, e."contentHash", e.revision,
             (SELECT count(*) FROM "Observation" o WHERE o."epochId" = e.id)::int AS n,
@@ -194,7 +197,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   input.forEach((ep, i) => {
     const prev = byTime.get(Date.parse(ep.time));
     if (!prev) plan.push({ index: i, revision: 1, previous: null });
-    else if (prev.contentHash === hashes[i]) out[i] = { id: prev.id, time: ep.time, observations: prev.n, revision: prev.revision, contentHash: prev.contentHash, outcome: "unchanged" };
+    else if (prev.contentHash === hashOf(i)) out[i] = { id: prev.id, time: ep.time, observations: prev.n, revision: prev.revision, contentHash: prev.contentHash, outcome: "unchanged" };
     else if (opts.revise) plan.push({ index: i, revision: prev.maxRevision + 1, previous: prev });
     else conflicts.push({ time: ep.time, epochId: prev.id, revision: prev.revision, line: ep.timeAt.line, field: ep.timeAt.field });
   });
@@ -211,21 +214,28 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   if (revisedIds.length > 0) await tx.query(`UPDATE "Epoch" SET "isCurrent" = false WHERE id = ANY($1::int[])`, [intArray(revisedIds)]);
   let results = 0;
   if (plan.length > 0) {
-    const inserted = await tx.query<{ id: number; time: Date }>(
-      `INSERT INTO "Epoch" ("siteId", "time", "revision", "isCurrent", "source", "contentHash", "createdBy")
-       SELECT $1, t, r, true, $2, h, $3 FROM unnest($4::timestamptz[], $5::int[], $6::text[]) AS u(t, r, h)
-       RETURNING id, "time"`,
-      [siteId, opts.source ?? "api", opts.actor, textArray(plan.map((p) => input[p.index].time)), intArray(plan.map((p) => p.revision)), textArray(plan.map((p) => hashes[p.index]))],
-    );
-    const idByTime = new Map(inserted.map((r) => [r.time.getTime(), r.id]));
-    for (const p of plan) {
+    // Epoch ids first (Observation has no foreign key, so its rows may go in before their Epoch row):
+    // the observations are stored while this process hashes the new epochs, then the Epoch rows.
+    const ids = await tx.query<{ id: number }>(`SELECT nextval(pg_get_serial_sequence('"Epoch"', 'id'))::int AS id FROM generate_series(1, $1::int)`, [plan.length]);
+    plan.forEach((p, k) => {
       const ep = input[p.index];
-      const id = idByTime.get(Date.parse(ep.time));
-      if (id === undefined) throw new Error(`ingest: inserted epoch at ${ep.time} not returned`);
-      out[p.index] = { id, time: ep.time, observations: ep.observations.length, revision: p.revision, contentHash: hashes[p.index], outcome: p.previous ? "revised" : "created" };
-    }
+      out[p.index] = { id: ids[k].id, time: ep.time, observations: ep.observations.length, revision: p.revision, contentHash: "", outcome: p.previous ? "revised" : "created" };
+    });
     opts.timer?.lap("epochs");
-    await insertObservations(tx, plan.map((p) => ({ epochId: (out[p.index] as StoredEpoch).id, obs: resolved[p.index] })), pointId, opts.timer);
+    await insertObservations(
+      tx,
+      plan.map((p) => ({ epochId: (out[p.index] as StoredEpoch).id, obs: resolved[p.index] })),
+      pointId,
+      opts.timer,
+      () => plan.forEach((p) => hashOf(p.index)),
+    );
+    for (const p of plan) (out[p.index] as StoredEpoch).contentHash = hashOf(p.index);
+    await tx.query(
+      `INSERT INTO "Epoch" (id, "siteId", "time", "revision", "isCurrent", "source", "contentHash", "createdBy")
+       SELECT i, $1, t, r, true, $2, h, $3 FROM unnest($4::int[], $5::timestamptz[], $6::int[], $7::text[]) AS u(i, t, r, h)`,
+      [siteId, opts.source ?? "api", opts.actor, intArray(plan.map((p) => (out[p.index] as StoredEpoch).id)), textArray(plan.map((p) => input[p.index].time)), intArray(plan.map((p) => p.revision)), textArray(plan.map((p) => hashOf(p.index)))],
+    );
+    opts.timer?.lap("epochs");
     await opts.failpoint?.("after-observations");
 
     // 4. Audit and results.
@@ -258,14 +268,18 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
 }
 
 /** Observations go in with binary COPY (as the result rows do: cheaper for the server than INSERT … SELECT FROM unnest). */
-async function insertObservations(tx: Tx, epochs: { epochId: number; obs: ResolvedObservation[] }[], pointId: Map<string, number>, timer?: PhaseTimer): Promise<void> {
+/** `whileStoring`: called once, when the first statement's data has been handed to the server (Node work that overlaps the server's). */
+async function insertObservations(tx: Tx, epochs: { epochId: number; obs: ResolvedObservation[] }[], pointId: Map<string, number>, timer?: PhaseTimer, whileStoring?: () => void): Promise<void> {
+  let pending = whileStoring;
   let eid: number[] = [], pid: number[] = [], e: number[] = [], n: number[] = [], h: number[] = [], se: number[] = [], sn: number[] = [], sh: number[] = [];
   const flush = async (): Promise<void> => {
     if (eid.length === 0) return;
     const columns: CopyColumn[] = [eid, pid].map((values): CopyColumn => ({ type: "int4", values })).concat([e, n, h, se, sn, sh].map((values): CopyColumn => ({ type: "float8", values })));
     const data = writeCopyBinary(columns, 0, eid.length);
     timer?.lap("observations-encode");
-    const stored = await tx.copyFrom(`COPY "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight") FROM STDIN (FORMAT binary)`, data);
+    const onSent = pending;
+    pending = undefined;
+    const stored = await tx.copyFrom(`COPY "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight") FROM STDIN (FORMAT binary)`, data, onSent);
     if (stored !== eid.length) throw new Error(`ingest: COPY stored ${stored} observations of ${eid.length}`);
     timer?.lap("observations");
     eid = []; pid = []; e = []; n = []; h = []; se = []; sn = []; sh = [];
@@ -279,4 +293,5 @@ async function insertObservations(tx: Tx, epochs: { epochId: number; obs: Resolv
     if (eid.length >= OBSERVATION_CHUNK) await flush();
   }
   await flush();
+  pending?.();
 }
