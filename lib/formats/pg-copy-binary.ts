@@ -65,6 +65,80 @@ export type CopyColumn =
 const PG_EPOCH_MS = 946_684_800_000;
 
 /**
+ * Builds a binary COPY stream field by field: `tuple(n)`, then n fields, for each row; `finish()`
+ * adds the trailer and returns the bytes. Grows as needed from `sizeHint` bytes of tuples.
+ */
+export class CopyBinaryWriter {
+  private buf: Uint8Array;
+  private dv: DataView;
+  private at = 19;
+
+  constructor(sizeHint = 1 << 16) {
+    this.buf = new Uint8Array(19 + Math.max(64, sizeHint) + 2);
+    this.dv = new DataView(this.buf.buffer);
+    this.buf.set(SIGNATURE, 0);
+  }
+
+  private need(n: number): void {
+    if (this.at + n + 2 <= this.buf.byteLength) return;
+    const next = new Uint8Array(Math.max(2 * this.buf.byteLength, this.at + n + 2));
+    next.set(this.buf.subarray(0, this.at));
+    this.buf = next;
+    this.dv = new DataView(next.buffer);
+  }
+
+  tuple(fields: number): void {
+    this.need(2);
+    this.dv.setInt16(this.at, fields);
+    this.at += 2;
+  }
+
+  null(): void {
+    this.need(4);
+    this.dv.setInt32(this.at, -1);
+    this.at += 4;
+  }
+
+  int4(v: number): void {
+    if (!Number.isInteger(v) || v < -2147483648 || v > 2147483647) throw new RangeError(`binary COPY: not an int4: ${v}`);
+    this.need(8);
+    this.dv.setInt32(this.at, 4);
+    this.dv.setInt32(this.at + 4, v);
+    this.at += 8;
+  }
+
+  /** A finite double; NaN is written as NULL only when `nanIsNull`, else refused like the infinities. */
+  float8(v: number, nanIsNull = false): void {
+    if (nanIsNull && Number.isNaN(v)) return this.null();
+    if (!Number.isFinite(v)) throw new RangeError(`binary COPY: not a finite number: ${v}`);
+    this.need(12);
+    this.dv.setInt32(this.at, 8);
+    this.dv.setFloat64(this.at + 4, v);
+    this.at += 12;
+  }
+
+  int8(v: bigint): void {
+    this.need(12);
+    this.dv.setInt32(this.at, 8);
+    this.dv.setBigInt64(this.at + 4, v);
+    this.at += 12;
+  }
+
+  bytes(b: Uint8Array): void {
+    this.need(4 + b.byteLength);
+    this.dv.setInt32(this.at, b.byteLength);
+    this.buf.set(b, this.at + 4);
+    this.at += 4 + b.byteLength;
+  }
+
+  finish(): Uint8Array {
+    this.need(0);
+    this.dv.setInt16(this.at, -1);
+    return this.buf.subarray(0, this.at + 2);
+  }
+}
+
+/**
  * Writes rows [from, to) of the columns as one binary COPY stream (header, tuples, trailer), the
  * input of `COPY table (columns…) FROM STDIN (FORMAT binary)`. Field bytes are the types' binary
  * receive input: int4 4 bytes, float8 IEEE 754 8 bytes, text UTF-8, timestamptz int64 microseconds
@@ -73,8 +147,6 @@ const PG_EPOCH_MS = 946_684_800_000;
 export function writeCopyBinary(columns: readonly CopyColumn[], from: number, to: number): Uint8Array {
   const n = Math.max(0, to - from);
   const utf8 = new TextEncoder();
-  // Text fields encoded once, and timestamps converted once per distinct string (a live epoch's rows share one time).
-  const encoded: (Uint8Array | null)[][] = columns.map((c) => (c.type === "text" ? Array.from({ length: n }, (_, i) => (c.values[from + i] === null ? null : utf8.encode(c.values[from + i] as string))) : []));
   const micros = new Map<string, bigint>();
   const microsOf = (iso: string): bigint => {
     let v = micros.get(iso);
@@ -86,61 +158,25 @@ export function writeCopyBinary(columns: readonly CopyColumn[], from: number, to
     }
     return v;
   };
-  let size = 11 + 4 + 4 + 2;
-  for (let c = 0; c < columns.length; c++) {
-    const col = columns[c];
-    if (col.type === "int4") size += 8 * n;
-    else if (col.type === "timestamptz") size += 12 * n;
-    else if (col.type === "float8") for (let i = 0; i < n; i++) size += Number.isNaN(col.values[from + i]) ? 4 : 12;
-    else for (const b of encoded[c]) size += 4 + (b === null ? 0 : b.byteLength);
-  }
-  size += 2 * n;
-  const out = new Uint8Array(size);
-  const dv = new DataView(out.buffer);
-  out.set(SIGNATURE, 0);
-  dv.setUint32(11, 0);
-  dv.setUint32(15, 0);
-  let at = 19;
-  for (let i = 0; i < n; i++) {
-    const r = from + i;
-    dv.setInt16(at, columns.length);
-    at += 2;
-    for (let c = 0; c < columns.length; c++) {
-      const col = columns[c];
-      if (col.type === "int4") {
-        const v = col.values[r];
-        if (!Number.isInteger(v) || v < -2147483648 || v > 2147483647) throw new RangeError(`binary COPY: not an int4: ${v}`);
-        dv.setInt32(at, 4);
-        dv.setInt32(at + 4, v);
-        at += 8;
-      } else if (col.type === "float8") {
-        const v = col.values[r];
-        if (Number.isNaN(v)) {
-          dv.setInt32(at, -1);
-          at += 4;
-          continue;
-        }
-        if (!Number.isFinite(v)) throw new RangeError(`binary COPY: not a finite number: ${v}`);
-        dv.setInt32(at, 8);
-        dv.setFloat64(at + 4, v);
-        at += 12;
-      } else if (col.type === "timestamptz") {
-        dv.setInt32(at, 8);
-        dv.setBigInt64(at + 4, microsOf(col.values[r]));
-        at += 12;
-      } else {
-        const b = encoded[c][i];
-        if (b === null) {
-          dv.setInt32(at, -1);
-          at += 4;
-        } else {
-          dv.setInt32(at, b.byteLength);
-          out.set(b, at + 4);
-          at += 4 + b.byteLength;
+  // Text values encoded once per distinct string (statuses, a few codes).
+  const texts = new Map<string, Uint8Array>();
+  const w = new CopyBinaryWriter(n * (2 + columns.length * 12));
+  for (let r = from; r < to; r++) {
+    w.tuple(columns.length);
+    for (const col of columns) {
+      if (col.type === "int4") w.int4(col.values[r]);
+      else if (col.type === "float8") w.float8(col.values[r], true);
+      else if (col.type === "timestamptz") w.int8(microsOf(col.values[r]));
+      else {
+        const t = col.values[r];
+        if (t === null) w.null();
+        else {
+          let b = texts.get(t);
+          if (!b) texts.set(t, (b = utf8.encode(t)));
+          w.bytes(b);
         }
       }
     }
   }
-  dv.setInt16(at, -1);
-  return out;
+  return w.finish();
 }

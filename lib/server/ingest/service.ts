@@ -23,7 +23,7 @@ import { checkEpochBounds } from "../schemas/ingest.ts";
 import { computeResultsForEpochs } from "../results/compute.ts";
 import { afterEpochsCommitted } from "../pipeline.ts";
 import { intArray, textArray } from "./sql-arrays.ts";
-import { writeCopyBinary, type CopyColumn } from "../../formats/pg-copy-binary.ts";
+import { CopyBinaryWriter } from "../../formats/pg-copy-binary.ts";
 import { withPgTransaction, type Sql } from "./pg-tx.ts";
 import type { EpochInput } from "../../formats/epoch-json.ts";
 import type { PhaseTimer } from "../timing.ts";
@@ -125,6 +125,7 @@ export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOpt
     if (seenTimes.has(ep.time)) throw new AppError("invalid", "Two epochs at the same time in one request.", { errors: [{ line: ep.timeAt.line, field: ep.timeAt.field, message: `a second epoch at ${ep.time}` }] });
     seenTimes.add(ep.time);
   }
+  opts.timer?.lap("bounds");
 
   const result = await withPgTransaction((tx) => run(tx, input, opts), { timeoutMs: transactionTimeoutMs() });
   opts.timer?.lap("commit");
@@ -267,31 +268,45 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   return { stored: plan.length > 0, epochs: out as StoredEpoch[], newPoints, results };
 }
 
-/** Observations go in with binary COPY (as the result rows do: cheaper for the server than INSERT … SELECT FROM unnest). */
-/** `whileStoring`: called once, when the first statement's data has been handed to the server (Node work that overlaps the server's). */
+/**
+ * Observations go in with binary COPY (as the result rows do: cheaper for the server than INSERT …
+ * SELECT FROM unnest), the stream written in one pass (every field is present: 2 int4 and 6 float8).
+ * `whileStoring`: called once, when the first statement's data has been handed to the server (Node
+ * work that overlaps the server's).
+ */
 async function insertObservations(tx: Tx, epochs: { epochId: number; obs: ResolvedObservation[] }[], pointId: Map<string, number>, timer?: PhaseTimer, whileStoring?: () => void): Promise<void> {
   let pending = whileStoring;
-  let eid: number[] = [], pid: number[] = [], e: number[] = [], n: number[] = [], h: number[] = [], se: number[] = [], sn: number[] = [], sh: number[] = [];
-  const flush = async (): Promise<void> => {
-    if (eid.length === 0) return;
-    const columns: CopyColumn[] = [eid, pid].map((values): CopyColumn => ({ type: "int4", values })).concat([e, n, h, se, sn, sh].map((values): CopyColumn => ({ type: "float8", values })));
-    const data = writeCopyBinary(columns, 0, eid.length);
+  const sql = `COPY "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight") FROM STDIN (FORMAT binary)`;
+  let at = 0;
+  while (at < epochs.length) {
+    // Whole epochs per statement, up to OBSERVATION_CHUNK rows (at least one epoch).
+    let end = at, rows = 0;
+    while (end < epochs.length && (end === at || rows + epochs[end].obs.length <= OBSERVATION_CHUNK)) rows += epochs[end++].obs.length;
+    const w = new CopyBinaryWriter(rows * (2 + 2 * 8 + 6 * 12));
+    for (let k = at; k < end; k++) {
+      const ep = epochs[k];
+      for (const o of ep.obs) {
+        const p = pointId.get(o.point);
+        if (p === undefined) throw new Error(`ingest: point ${o.point} has no id`);
+        w.tuple(8);
+        w.int4(ep.epochId);
+        w.int4(p);
+        w.float8(o.east);
+        w.float8(o.north);
+        w.float8(o.height);
+        w.float8(o.sigmaEast);
+        w.float8(o.sigmaNorth);
+        w.float8(o.sigmaHeight);
+      }
+    }
+    const data = w.finish();
     timer?.lap("observations-encode");
     const onSent = pending;
     pending = undefined;
-    const stored = await tx.copyFrom(`COPY "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight") FROM STDIN (FORMAT binary)`, data, onSent);
-    if (stored !== eid.length) throw new Error(`ingest: COPY stored ${stored} observations of ${eid.length}`);
+    const stored = await tx.copyFrom(sql, data, onSent);
+    if (stored !== rows) throw new Error(`ingest: COPY stored ${stored} observations of ${rows}`);
     timer?.lap("observations");
-    eid = []; pid = []; e = []; n = []; h = []; se = []; sn = []; sh = [];
-  };
-  for (const ep of epochs) {
-    for (const o of ep.obs) {
-      const p = pointId.get(o.point);
-      if (p === undefined) throw new Error(`ingest: point ${o.point} has no id`);
-      eid.push(ep.epochId); pid.push(p); e.push(o.east); n.push(o.north); h.push(o.height); se.push(o.sigmaEast); sn.push(o.sigmaNorth); sh.push(o.sigmaHeight);
-    }
-    if (eid.length >= OBSERVATION_CHUNK) await flush();
+    at = end;
   }
-  await flush();
   pending?.();
 }

@@ -46,8 +46,18 @@ export function checkEpochBounds(epochs: readonly EpochInput[], nowMs: number): 
     const obs = ep.observations;
     for (let i = 0; i < obs.length; i++) {
       const o = obs[i];
+      const codeChecked = goodCodes.has(o.point);
+      const inBounds =
+        codeChecked &&
+        Math.abs(o.east) <= MAX_ABS_PLAN_M &&
+        Math.abs(o.north) <= MAX_ABS_PLAN_M &&
+        Math.abs(o.height) <= MAX_ABS_HEIGHT_M &&
+        (o.sigmaEast === null || (o.sigmaEast > 0 && o.sigmaEast <= MAX_SIGMA_M)) &&
+        (o.sigmaNorth === null || (o.sigmaNorth > 0 && o.sigmaNorth <= MAX_SIGMA_M)) &&
+        (o.sigmaHeight === null || (o.sigmaHeight > 0 && o.sigmaHeight <= MAX_SIGMA_M));
+      if (inBounds) continue; // the usual row: one pass, no message built
       const f = (k: ObservationKey): string => ep.fieldOf(i, k);
-      if (goodCodes.has(o.point)) {
+      if (codeChecked) {
         // checked already
       } else if (o.point.length > MAX_POINT_CODE_LENGTH) report(o.line, f("point"), `point code is longer than ${MAX_POINT_CODE_LENGTH} characters`);
       else if (CONTROL_RE.test(o.point)) report(o.line, f("point"), "point code contains a control character");
