@@ -28,7 +28,7 @@ import type { AlertMailFacts } from "../mail/compose.ts";
 import { mailConfigFromEnv, type MailConfig } from "../mail/config.ts";
 import { enqueueMails, scheduleDigest, startMailWorker } from "../mail/queue.ts";
 import { pgQuery, withPgTransaction, type Sql } from "../ingest/pg-tx.ts";
-import { computedResultsOf, type ComputedEpoch } from "../results/compute.ts";
+import { computedResultsOf, type ComputedEpoch } from "../results/columns.ts";
 import type { PhaseTimer } from "../timing.ts";
 import { floatArray, intArray, intArrayBinary, textArray } from "../ingest/sql-arrays.ts";
 

@@ -260,7 +260,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
         const e = out[p.index] as StoredEpoch;
         return { id: e.id, time: e.time, points: () => new Map(resolved[p.index].map((o) => [o.point, o])) };
       }),
-      { newEpochs: true, timer: opts.timer },
+      { timer: opts.timer },
     );
     await opts.failpoint?.("after-results");
   }

@@ -3,9 +3,8 @@
  * those epochs against its reference epoch (Element.referenceEpochId, else Site.referenceEpochId, else
  * the site's first current epoch) and one cumulative ElementResult row is written per element and
  * epoch, in the caller's transaction. Plan triangles go through the batch kernel (lib/strain/batch.ts),
- * everything else through `computeElementStrain`. Rows are written with one INSERT … SELECT FROM
- * unnest(…) per 50,000 rows; re-computing an (element, reference, epoch) replaces its row (results are
- * derived), unless the caller says the epochs are new (`newEpochs`), when a plain INSERT is enough.
+ * everything else through `computeElementStrain`. Rows are held column by column (columns.ts) and
+ * written with binary COPY (store.ts): the epochs are new, so no row of theirs exists yet.
  *
  * Hot path (one live epoch of 2,000 points against ~3,900 elements, test/bench/ingest.ts): the epochs
  * just stored come in memory; the site's element definitions are cached per database and site and
@@ -16,23 +15,17 @@
 import type { Prisma } from "../db/generated/client.ts";
 import type { Db } from "../db/client.ts";
 import { computeElementStrain, type ElementSpec } from "../../strain/element.ts";
-import { STORED_VALUE_KEYS, storedValuesOf, type StoredValueKey, type StoredValues } from "../../strain/stored-values.ts";
+import { storedValuesOf } from "../../strain/stored-values.ts";
 import { computeTriangleBatch, createTriangleBatchOut, BATCH_OK } from "../../strain/batch.ts";
 import type { ElementKind, ElementMode, SurveyPoint } from "../../strain/types.ts";
-import { floatArrayBinary, intArray, intArrayBinary, textArray } from "../ingest/sql-arrays.ts";
+import { intArray } from "../ingest/sql-arrays.ts";
 import { currentDatabaseKey, type Sql } from "../ingest/pg-tx.ts";
-import { writeCopyBinary, type CopyColumn } from "../../formats/pg-copy-binary.ts";
 import type { PhaseTimer } from "../timing.ts";
+import { keepComputed, ResultColumns, type ResultRow } from "./columns.ts";
+import { copyResultRows } from "./store.ts";
 
 export type Tx = Prisma.TransactionClient | Db;
 
-interface ResultRow extends StoredValues {
-  elementId: number;
-  epochId: number;
-  referenceEpochId: number;
-  timeIso: string;
-  status: string;
-}
 
 type EpochPoints = Map<string, SurveyPoint>;
 
@@ -83,14 +76,14 @@ interface SiteElements {
 }
 
 const CACHE_KEY = Symbol.for("epochal.results.cache");
-type Cache = { sites: Map<string, SiteElements>; refPoints: Map<string, EpochPoints>; computed: Map<string, ComputedEpoch> };
+type Cache = { sites: Map<string, SiteElements>; refPoints: Map<string, EpochPoints> };
 type CacheHolder = { [CACHE_KEY]?: Cache };
 /** Reference epochs whose points are kept (a few per site; each ~2,000 points is ~0.5 MB). */
 const REF_CACHE_SIZE = 16;
 
 function cache(): Cache {
   const h = globalThis as CacheHolder;
-  h[CACHE_KEY] ??= { sites: new Map(), refPoints: new Map(), computed: new Map() };
+  h[CACHE_KEY] ??= { sites: new Map(), refPoints: new Map() };
   return h[CACHE_KEY];
 }
 
@@ -137,118 +130,16 @@ function prepareGroup(els: ElementRow[], ref: EpochPoints): PreparedGroup {
 }
 
 /**
- * Result rows column by column (what the unnest INSERT takes), without one object per row: ids in
- * Int32Arrays, values in Float64Arrays with NaN for "no value" (stored as NULL: a stored value is never
- * NaN, non-finite results are stored as NULL), so a live epoch's ~50,000 numbers are no ~50,000 heap
- * objects for the garbage collector. The arrays hold `capacity` slots: read only the first `length`.
+ * An epoch just stored: its id, time and a function giving its points as stored (called only when the
+ * site has elements, so a backfill of a site without any builds no maps).
  */
-export class ResultColumns {
-  length = 0;
-  elementId: Int32Array;
-  epochId: Int32Array;
-  referenceEpochId: Int32Array;
-  readonly timeIso: string[] = [];
-  readonly status: string[] = [];
-  values: Record<StoredValueKey, Float64Array>;
-
-  constructor(capacity = 1024) {
-    const n = Math.max(16, capacity);
-    this.elementId = new Int32Array(n);
-    this.epochId = new Int32Array(n);
-    this.referenceEpochId = new Int32Array(n);
-    this.values = Object.fromEntries(STORED_VALUE_KEYS.map((k) => [k, new Float64Array(n).fill(NaN)])) as Record<StoredValueKey, Float64Array>;
-  }
-
-  /** Appends a row's head; its values start as NaN (no value). Returns the row's index. */
-  add(elementId: number, epochId: number, referenceEpochId: number, timeIso: string, status: string): number {
-    const i = this.length;
-    if (i === this.elementId.length) this.grow(2 * i);
-    this.elementId[i] = elementId;
-    this.epochId[i] = epochId;
-    this.referenceEpochId[i] = referenceEpochId;
-    this.timeIso.push(timeIso);
-    this.status.push(status);
-    this.length = i + 1;
-    return i;
-  }
-
-  push(r: ResultRow): void {
-    const i = this.add(r.elementId, r.epochId, r.referenceEpochId, r.timeIso, r.status);
-    for (const k of RESULT_KEYS) {
-      const v = r[k];
-      if (v !== null) this.values[k][i] = v;
-    }
-  }
-
-  /** The value at row i, or null. */
-  value(k: StoredValueKey, i: number): number | null {
-    const v = this.values[k][i];
-    return Number.isNaN(v) ? null : v;
-  }
-
-  private grow(n: number): void {
-    const int = (a: Int32Array): Int32Array => {
-      const b = new Int32Array(n);
-      b.set(a);
-      return b;
-    };
-    this.elementId = int(this.elementId);
-    this.epochId = int(this.epochId);
-    this.referenceEpochId = int(this.referenceEpochId);
-    for (const k of RESULT_KEYS) {
-      const b = new Float64Array(n).fill(NaN);
-      b.set(this.values[k]);
-      this.values[k] = b;
-    }
-  }
-}
-const RESULT_KEYS = STORED_VALUE_KEYS;
-
-/**
- * The rows just computed for one epoch, kept in memory for the alert evaluation that follows its
- * commit (lib/server/alerts/evaluate.ts reads them instead of reading them back, and reads the
- * previous epoch's from here too when this process computed it). Only epochs stored in the same
- * transaction are kept (their rows are never recomputed), keyed by database and epoch id; an epoch
- * id is never reused, so an entry of a transaction that rolled back is never asked for (evaluation
- * only asks for committed current epochs). The last few epochs per process are kept.
- */
-export interface ComputedEpoch {
-  epochId: number;
-  columns: ResultColumns;
-  /** The site's enabled elements these rows were computed for (checked against the database in that transaction). */
-  elements: readonly ComputedElement[];
-}
-
-/** An enabled element as the results engine read it: what alert evaluation needs to pick its rows. */
-export type ComputedElement = { id: number; kind: string; referenceEpochId: number | null };
-const COMPUTED_KEEP = 8;
-
-/** The rows computed in this process for that epoch, or undefined. */
-export function computedResultsOf(epochId: number): ComputedEpoch | undefined {
-  return cache().computed.get(`${currentDatabaseKey()}#${epochId}`);
-}
-
-/** Drops the kept rows of these epochs (tests: to make evaluation read them from the database). */
-export function forgetComputedResults(epochIds: readonly number[]): void {
-  for (const id of epochIds) cache().computed.delete(`${currentDatabaseKey()}#${id}`);
-}
-
-function keepComputed(dbKey: string, rows: ResultColumns, elements: readonly ComputedElement[]): void {
-  const c = cache().computed;
-  for (const epochId of new Set(rows.epochId.subarray(0, rows.length))) {
-    c.set(`${dbKey}#${epochId}`, { epochId, columns: rows, elements });
-    while (c.size > COMPUTED_KEEP) c.delete(c.keys().next().value as string);
-  }
-}
-
-/** An epoch to compute: its id, or (from the ingest service) its id, time and points as just stored (or a function making them). */
-export type EpochToCompute = number | { id: number; time: string | Date; points: EpochPoints | (() => EpochPoints) };
+export type EpochToCompute = { id: number; time: string; points: () => EpochPoints };
 
 /**
  * Computes and stores the results of every enabled element of `siteId` at each of `epochs`.
  * Returns the number of rows written. Call it inside the transaction that stored the epochs.
  */
-export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], opts: { newEpochs?: boolean; timer?: PhaseTimer } = {}): Promise<number> {
+export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], opts: { timer?: PhaseTimer } = {}): Promise<number> {
   if (epochs.length === 0) return 0;
   const dbKey = currentDatabaseKey();
   // One round trip: the site's reference (Site.referenceEpochId, else its first current epoch) and the fingerprint of its elements.
@@ -274,20 +165,11 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
 
   const known = new Map<number, EpochPoints>();
   const times = new Map<number, string>();
-  const unknownTimes: number[] = [];
   for (const e of epochs) {
-    if (typeof e === "number") unknownTimes.push(e);
-    else {
-      // A function is called only here, after the site is known to have elements (a backfill of a site without any builds no maps).
-      known.set(e.id, typeof e.points === "function" ? e.points() : e.points);
-      times.set(e.id, typeof e.time === "string" ? new Date(e.time).toISOString() : e.time.toISOString());
-    }
+    known.set(e.id, e.points());
+    times.set(e.id, new Date(e.time).toISOString());
   }
-  if (unknownTimes.length > 0) {
-    const rows = await tx.query<{ id: number; time: Date }>(`SELECT id, time FROM "Epoch" WHERE "siteId" = $1 AND id = ANY($2::int[])`, [siteId, intArray(unknownTimes)]);
-    for (const r of rows) times.set(r.id, r.time.toISOString());
-  }
-  const epochIds = epochs.map((e) => (typeof e === "number" ? e : e.id)).filter((id) => times.has(id));
+  const epochIds = epochs.map((e) => e.id);
 
   // Group the elements by reference epoch; plan triangles of a group go through the batch kernel together.
   const byRef = new Map<number, ElementRow[]>();
@@ -363,71 +245,8 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
     }
   }
   opts.timer?.lap("results-compute");
-  await insertResultRows(tx, rows, opts.newEpochs === true, opts.timer);
+  await copyResultRows(tx, rows, opts.timer);
   // Live epochs (one or a few per request) are kept for the alert evaluation after commit; backfills are not.
-  if (opts.newEpochs === true && epochIds.length <= 4) keepComputed(dbKey, rows, elements);
+  if (epochIds.length <= 4) keepComputed(dbKey, rows, elements);
   return rows.length;
-}
-
-const RESULT_CHUNK = 50_000;
-
-/** `fresh`: the epochs were stored in this transaction, so no row can exist yet (plain INSERT, cheaper). */
-const RESULT_COLUMNS = ["elementId", "epochId", "referenceEpochId", "time", "status", ...STORED_VALUE_KEYS].map((c) => `"${c}"`).join(", ");
-
-/**
- * New rows go in with `COPY … FROM STDIN (FORMAT binary)`: measured on a live epoch's 3,922 rows it
- * costs the server less than INSERT … SELECT FROM unnest(…) of the same binary arrays (no function
- * scan, batched heap inserts). Re-computed rows need ON CONFLICT, which COPY has not: they take the
- * INSERT below.
- */
-async function copyResultRows(tx: Sql, rows: ResultColumns, timer?: PhaseTimer): Promise<void> {
-  const columns: CopyColumn[] = [
-    { type: "int4", values: rows.elementId },
-    { type: "int4", values: rows.epochId },
-    { type: "int4", values: rows.referenceEpochId },
-    { type: "timestamptz", values: rows.timeIso },
-    { type: "text", values: rows.status },
-    ...RESULT_KEYS.map((k): CopyColumn => ({ type: "float8", values: rows.values[k] })),
-  ];
-  for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
-    const j = Math.min(rows.length, i + RESULT_CHUNK);
-    const data = writeCopyBinary(columns, i, j);
-    timer?.lap("results-encode");
-    const n = await tx.copyFrom(`COPY "ElementResult" (${RESULT_COLUMNS}) FROM STDIN (FORMAT binary)`, data);
-    if (n !== j - i) throw new Error(`results: COPY stored ${n} rows of ${j - i}`);
-    timer?.lap("results-insert");
-  }
-}
-
-async function insertResultRows(tx: Sql, rows: ResultColumns, fresh: boolean, timer?: PhaseTimer): Promise<void> {
-  if (fresh) return copyResultRows(tx, rows, timer);
-  for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
-    const j = Math.min(rows.length, i + RESULT_CHUNK);
-    const col = (k: StoredValueKey): Buffer => floatArrayBinary(rows.values[k].subarray(i, j), { nanIsNull: true });
-    const params = [
-      intArrayBinary(rows.elementId.subarray(i, j)),
-      intArrayBinary(rows.epochId.subarray(i, j)),
-      intArrayBinary(rows.referenceEpochId.subarray(i, j)),
-      textArray(rows.timeIso.slice(i, j)),
-      textArray(rows.status.slice(i, j)),
-      ...RESULT_KEYS.map(col),
-    ];
-    timer?.lap("results-encode");
-    await tx.query(
-      `INSERT INTO "ElementResult" ("elementId", "epochId", "referenceEpochId", "time", "status",
-         "greenMax", "greenMin", "maxShear", "arealStrain", "rotationDeg", "azimuthMaxDeg", "engineering",
-         "sigmaGreenMax", "sigmaGreenMin", "sigmaMaxShear", "sigmaArealStrain", "sigmaEngineering")
-       SELECT * FROM unnest($1::int[], $2::int[], $3::int[], $4::timestamptz[], $5::text[],
-         $6::float8[], $7::float8[], $8::float8[], $9::float8[], $10::float8[], $11::float8[], $12::float8[],
-         $13::float8[], $14::float8[], $15::float8[], $16::float8[], $17::float8[])
-       ${fresh ? "" : `ON CONFLICT ("elementId", "referenceEpochId", "time", "epochId") DO UPDATE SET
-         "status" = EXCLUDED."status", "greenMax" = EXCLUDED."greenMax", "greenMin" = EXCLUDED."greenMin",
-         "maxShear" = EXCLUDED."maxShear", "arealStrain" = EXCLUDED."arealStrain", "rotationDeg" = EXCLUDED."rotationDeg",
-         "azimuthMaxDeg" = EXCLUDED."azimuthMaxDeg", "engineering" = EXCLUDED."engineering",
-         "sigmaGreenMax" = EXCLUDED."sigmaGreenMax", "sigmaGreenMin" = EXCLUDED."sigmaGreenMin", "sigmaMaxShear" = EXCLUDED."sigmaMaxShear",
-         "sigmaArealStrain" = EXCLUDED."sigmaArealStrain", "sigmaEngineering" = EXCLUDED."sigmaEngineering"`}`,
-      params,
-    );
-    timer?.lap("results-insert");
-  }
 }

@@ -1,6 +1,6 @@
 /**
  * Alert evaluation takes the results of epochs this process has just computed from memory
- * (lib/server/results/compute.ts `computedResultsOf`) instead of reading them back. Both paths must
+ * (lib/server/results/columns.ts `computedResultsOf`) instead of reading them back. Both paths must
  * give the same alerts: two sites with the same points, elements, epochs and rules, one evaluated
  * from memory, one after the kept rows are dropped (read from the database), give equal transitions.
  * Values: a triangle stretched uniformly by (1 + s) in plan has Green-Lagrange greenMax = s + s²/2
@@ -10,7 +10,7 @@ import { describe, expect, it } from "vitest";
 import { getDb } from "../../../lib/server/db/client.ts";
 import { ingestEpochs } from "../../../lib/server/ingest/service.ts";
 import { parseEpochCsvInput } from "../../../lib/server/ingest/csv-input.ts";
-import { computedResultsOf, forgetComputedResults } from "../../../lib/server/results/compute.ts";
+import { computedResultsOf, forgetComputedResults } from "../../../lib/server/results/columns.ts";
 import { evaluateAlerts } from "../../../lib/server/alerts/evaluate.ts";
 import { uniqueSlug } from "../../support/unique.ts";
 
