@@ -30,7 +30,7 @@ export async function post(
   slug: string,
   body: string | ReadableStream<Uint8Array>,
   opts: { token?: string | null; type?: string | null; query?: string; headers?: Record<string, string> } = {},
-): Promise<{ status: number; json: Record<string, unknown> }> {
+): Promise<{ status: number; json: Record<string, unknown>; serverTiming: string | null }> {
   const headers: Record<string, string> = { ...(opts.headers ?? {}) };
   if (opts.token) headers.authorization = `Bearer ${opts.token}`;
   if (opts.type !== null) headers["content-type"] = opts.type ?? CT.csv;
@@ -38,7 +38,7 @@ export async function post(
   if (typeof body !== "string") init.duplex = "half";
   const req = new Request(`http://localhost/api/v1/sites/${slug}/epochs${opts.query ?? ""}`, init);
   const res = await postEpochs(req, { params: Promise.resolve({ slug }) });
-  return { status: res.status, json: (await res.json()) as Record<string, unknown> };
+  return { status: res.status, json: (await res.json()) as Record<string, unknown>, serverTiming: res.headers.get("server-timing") };
 }
 
 export async function get(path: "epochs" | "points", slug: string, token: string, query = ""): Promise<{ status: number; json: Record<string, unknown> }> {

@@ -1,0 +1,39 @@
+/**
+ * PhaseTimer and the Server-Timing header (W3C Server Timing, https://www.w3.org/TR/server-timing/:
+ * `metric;dur=milliseconds`, entries separated by commas, names are tokens).
+ */
+import { describe, expect, it, vi } from "vitest";
+import { PhaseTimer, parseServerTiming } from "../../../lib/server/timing.ts";
+
+describe("PhaseTimer", () => {
+  it("laps the time since the previous lap, adds laps of one name, keeps first-lap order", () => {
+    const now = vi.spyOn(performance, "now");
+    now.mockReturnValue(100);
+    const t = new PhaseTimer();
+    now.mockReturnValue(103.25);
+    t.lap("parse");
+    now.mockReturnValue(110);
+    t.lap("store");
+    now.mockReturnValue(111.5);
+    t.lap("parse");
+    now.mockRestore();
+    expect(t.phases()).toEqual([
+      { name: "parse", ms: 4.75 },
+      { name: "store", ms: 6.75 },
+    ]);
+    expect(t.header()).toBe("parse;dur=4.8, store;dur=6.8");
+  });
+
+  it("writes names as tokens and reads its own header back", () => {
+    const now = vi.spyOn(performance, "now");
+    now.mockReturnValue(0);
+    const t = new PhaseTimer();
+    now.mockReturnValue(2);
+    t.lap("results insert/copy");
+    now.mockRestore();
+    expect(t.header()).toBe("results_insert_copy;dur=2.0");
+    expect(parseServerTiming(t.header())).toEqual(new Map([["results_insert_copy", 2]]));
+    expect(parseServerTiming('db;desc="primary";dur=5.5, cache, app;dur=1')).toEqual(new Map([["db", 5.5], ["app", 1]]));
+    expect(parseServerTiming(null).size).toBe(0);
+  });
+});
