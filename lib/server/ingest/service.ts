@@ -48,7 +48,7 @@ export interface IngestOptions {
   nowMs?: number;
   /** Test hook: called at each stage inside the transaction; throwing there must roll everything back. */
   failpoint?: (stage: IngestStage) => void | Promise<void>;
-  /** Phase timings (the route's Server-Timing header): lock, points, classify, observations, audit, results-*, commit, after-commit. */
+  /** Phase timings (the route's Server-Timing header): bounds, lock, points, classify, epochs, observations, results-*, audit, commit, after-commit. */
   timer?: PhaseTimer;
 }
 
