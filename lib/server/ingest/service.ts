@@ -5,12 +5,15 @@
  * One request is one transaction, serialised per site by a transaction-level advisory lock
  * (`pg_advisory_xact_lock(INGEST_LOCK_NAMESPACE, siteId)`): two posts of the same epoch cannot both
  * see "not stored yet"; posts to different sites do not wait for each other. Inside it:
- *   1. unknown point codes are registered (or refused, Site.refuseUnknownPoints);
+ *   1. unknown point codes are registered (or refused, Site.refuseUnknownPoints); known ones come
+ *      from an in-memory map checked against Site.pointsStamp;
  *   2. each epoch is compared with the current revision at its time by content hash:
  *      same hash → unchanged (its id is returned); different → conflict (409), or with `revise` a new
  *      revision (the old one stays, marked not current); none → created;
- *   3. epochs and observations are written with bulk INSERT … SELECT FROM unnest(…);
- *   4. one audit row per stored epoch; element results for the stored epochs (lib/server/results);
+ *   3. observations are written with binary COPY; while the server stores them this process hashes
+ *      the new epochs and computes their element results (when the site's reference is already
+ *      known); then the Epoch rows (bulk INSERT … SELECT FROM unnest(…));
+ *   4. one audit row per stored epoch; the element result rows (lib/server/results);
  * then, after commit, `afterEpochsCommitted` (lib/server/pipeline.ts). Any failure rolls everything back.
  * Ingest never updates coordinates and never deletes; the only update is the isCurrent flag of a
  * revised epoch.
@@ -20,11 +23,12 @@ import type { Db } from "../db/client.ts";
 import { AppError, type FieldError } from "../errors.ts";
 import { auditSafe } from "../audit.ts";
 import { checkEpochBounds } from "../schemas/ingest.ts";
-import { computeResultsForEpochs } from "../results/compute.ts";
+import { computeResultsForEpochs, planResults, storeResults, type EpochToCompute, type ResultsPlan } from "../results/compute.ts";
+import type { ResultColumns } from "../results/columns.ts";
 import { afterEpochsCommitted } from "../pipeline.ts";
 import { intArray, textArray } from "./sql-arrays.ts";
 import { CopyBinaryWriter } from "../../formats/pg-copy-binary.ts";
-import { withPgTransaction, type Sql } from "./pg-tx.ts";
+import { currentDatabaseKey, withPgTransaction, type Sql } from "./pg-tx.ts";
 import type { EpochInput } from "../../formats/epoch-json.ts";
 import type { PhaseTimer } from "../timing.ts";
 
@@ -106,6 +110,37 @@ export function epochContentHash(obs: readonly ResolvedObservation[]): string {
 
 type Tx = Sql;
 
+/**
+ * Point ids per database and site, as last read, with the Site.pointsStamp they were read under
+ * (database triggers change the stamp on any insert, update or delete of the site's points, by any
+ * writer: migration site_cache_stamps). Ids are only ever used under the site's ingest lock after
+ * the stamp has been read there, so a cached id is one the database holds. Never mutated: a request
+ * that registers points changes the stamp, and the next request reads the ids again.
+ */
+type PointIds = { stamp: string; ids: ReadonlyMap<string, number> };
+const POINT_IDS_KEY = Symbol.for("epochal.ingest.pointIds");
+const POINT_IDS_SITES = 64;
+type PointIdsHolder = { [POINT_IDS_KEY]?: Map<string, PointIds> };
+
+function pointIdCache(): Map<string, PointIds> {
+  const h = globalThis as PointIdsHolder;
+  h[POINT_IDS_KEY] ??= new Map();
+  return h[POINT_IDS_KEY];
+}
+
+async function sitePointIds(tx: Tx, siteId: number, stamp: string): Promise<ReadonlyMap<string, number>> {
+  const key = `${currentDatabaseKey()}#${siteId}`;
+  const c = pointIdCache();
+  const hit = c.get(key);
+  if (hit && hit.stamp === stamp) return hit.ids;
+  const rows = await tx.query<{ id: number; code: string }>(`SELECT id, code FROM "Point" WHERE "siteId" = $1`, [siteId]);
+  const ids = new Map(rows.map((r) => [r.code, r.id]));
+  c.delete(key);
+  c.set(key, { stamp, ids });
+  if (c.size > POINT_IDS_SITES) c.delete(c.keys().next().value as string);
+  return ids;
+}
+
 function transactionTimeoutMs(): number {
   const v = Number(process.env.EPOCHAL_INGEST_TIMEOUT_MS);
   return Number.isFinite(v) && v > 0 ? v : 10 * 60_000;
@@ -138,7 +173,15 @@ export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOpt
 async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): Promise<IngestResult> {
   const { siteId } = opts;
   await tx.query(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, [INGEST_LOCK_NAMESPACE, siteId]);
-  const [site] = await tx.query<{ sigmaHM: number; sigmaVM: number; refuseUnknownPoints: boolean }>(`SELECT "sigmaHM", "sigmaVM", "refuseUnknownPoints" FROM "Site" WHERE id = $1`, [siteId]);
+  // The site's settings, its cache stamps and its reference as stored now (first current epoch when none is set).
+  const [site] = await tx.query<{ sigmaHM: number; sigmaVM: number; refuseUnknownPoints: boolean; pointsStamp: string; elementsStamp: string; siteRef: number | null; firstId: number | null; firstTime: Date | null }>(
+    `SELECT s."sigmaHM", s."sigmaVM", s."refuseUnknownPoints", s."pointsStamp"::text AS "pointsStamp", s."elementsStamp"::text AS "elementsStamp",
+            s."referenceEpochId" AS "siteRef", f.id AS "firstId", f.time AS "firstTime"
+       FROM "Site" s
+       LEFT JOIN LATERAL (SELECT id, time FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" ORDER BY time, id LIMIT 1) f ON true
+      WHERE s.id = $1`,
+    [siteId],
+  );
   if (!site) throw new AppError("not_found", `No site with id ${siteId}.`);
   opts.timer?.lap("lock");
 
@@ -147,9 +190,13 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   for (const ep of input) ep.observations.forEach((o, i) => firstUse.has(o.point) || firstUse.set(o.point, { epoch: ep, index: i }));
   const codes = [...firstUse.keys()];
   const pointId = new Map<string, number>();
-  const known = await tx.query<{ id: number; code: string }>(`SELECT id, code FROM "Point" WHERE "siteId" = $1 AND code = ANY($2::text[])`, [siteId, textArray(codes)]);
-  for (const p of known) pointId.set(p.code, p.id);
-  const unknown = codes.filter((c) => !pointId.has(c));
+  const siteIds = await sitePointIds(tx, siteId, site.pointsStamp);
+  const unknown: string[] = [];
+  for (const c of codes) {
+    const id = siteIds.get(c);
+    if (id === undefined) unknown.push(c);
+    else pointId.set(c, id);
+  }
   if (unknown.length > 0 && site.refuseUnknownPoints) {
     const errors: FieldError[] = unknown.slice(0, 100).map((c) => {
       const u = firstUse.get(c) as { epoch: EpochInput; index: number };
@@ -223,12 +270,33 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
       out[p.index] = { id: ids[k].id, time: ep.time, observations: ep.observations.length, revision: p.revision, contentHash: "", outcome: p.previous ? "revised" : "created" };
     });
     opts.timer?.lap("epochs");
+    const toCompute: EpochToCompute[] = plan.map((p) => {
+      const e = out[p.index] as StoredEpoch;
+      return { id: e.id, time: e.time, points: () => new Map(resolved[p.index].map((o) => [o.point, o])) };
+    });
+    // The site's reference once these epochs are stored: known now unless it is (or may become) one of them.
+    const first = site.firstId !== null && site.firstTime !== null ? { id: site.firstId, ms: site.firstTime.getTime() } : null;
+    const siteRef =
+      site.siteRef ?? (first && !revisedIds.includes(first.id) && plan.every((p) => Date.parse(input[p.index].time) > first.ms) ? first.id : undefined);
+    // With the reference known, the results are planned now and computed while the server stores the observations.
+    let resultsPlan: ResultsPlan | null = null;
+    if (siteRef !== undefined) {
+      resultsPlan = await planResults(tx, siteId, toCompute, { siteRef, elementsStamp: site.elementsStamp });
+      opts.timer?.lap("results-read");
+    }
+    let resultRows: ResultColumns | null = null;
     await insertObservations(
       tx,
       plan.map((p) => ({ epochId: (out[p.index] as StoredEpoch).id, obs: resolved[p.index] })),
       pointId,
       opts.timer,
-      () => plan.forEach((p) => hashOf(p.index)),
+      () => {
+        plan.forEach((p) => hashOf(p.index));
+        if (resultsPlan) {
+          resultRows = resultsPlan.compute();
+          opts.timer?.lap("results-compute");
+        }
+      },
     );
     for (const p of plan) (out[p.index] as StoredEpoch).contentHash = hashOf(p.index);
     await tx.query(
@@ -253,15 +321,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     );
     opts.timer?.lap("audit");
     // The stored epochs go to the results step as they are in memory (no re-read of what was just written).
-    results = await computeResultsForEpochs(
-      tx,
-      siteId,
-      plan.map((p) => {
-        const e = out[p.index] as StoredEpoch;
-        return { id: e.id, time: e.time, points: () => new Map(resolved[p.index].map((o) => [o.point, o])) };
-      }),
-      { timer: opts.timer },
-    );
+    results = resultsPlan && resultRows ? await storeResults(tx, resultsPlan, resultRows, opts.timer) : await computeResultsForEpochs(tx, siteId, toCompute, { timer: opts.timer });
     await opts.failpoint?.("after-results");
   }
   const newPoints = unknown;
@@ -272,10 +332,19 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
  * Observations go in with binary COPY (as the result rows do: cheaper for the server than INSERT …
  * SELECT FROM unnest), the stream written in one pass (every field is present: 2 int4 and 6 float8).
  * `whileStoring`: called once, when the first statement's data has been handed to the server (Node
- * work that overlaps the server's).
+ * work that overlaps the server's: hashing the epochs, computing their results); what it throws is
+ * thrown from here.
  */
 async function insertObservations(tx: Tx, epochs: { epochId: number; obs: ResolvedObservation[] }[], pointId: Map<string, number>, timer?: PhaseTimer, whileStoring?: () => void): Promise<void> {
-  let pending = whileStoring;
+  // Run from the connection's callbacks: what it throws is kept and thrown here once the COPY has answered.
+  let failure: { error: unknown } | null = null;
+  let pending = whileStoring && (() => {
+    try {
+      whileStoring();
+    } catch (error) {
+      failure = { error };
+    }
+  });
   const sql = `COPY "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight") FROM STDIN (FORMAT binary)`;
   let at = 0;
   while (at < epochs.length) {
@@ -304,9 +373,11 @@ async function insertObservations(tx: Tx, epochs: { epochId: number; obs: Resolv
     const onSent = pending;
     pending = undefined;
     const stored = await tx.copyFrom(sql, data, onSent);
+    if (failure) throw (failure as { error: unknown }).error;
     if (stored !== rows) throw new Error(`ingest: COPY stored ${stored} observations of ${rows}`);
     timer?.lap("observations");
     at = end;
   }
   pending?.();
+  if (failure) throw (failure as { error: unknown }).error;
 }

@@ -8,9 +8,11 @@
  *
  * Hot path (one live epoch of 2,000 points against ~3,900 elements, test/bench/ingest.ts): the epochs
  * just stored come in memory; the site's element definitions are cached per database and site and
- * checked with one aggregate query (count and a sum of row hashes, so any create, edit, disable or
- * re-baseline, by any process, reloads them); a reference epoch's points are cached by epoch id
- * (ingest never changes an epoch's observations: a revision is a new epoch id).
+ * checked against Site.elementsStamp, which database triggers change on any create, edit, disable or
+ * re-baseline by any writer (migration site_cache_stamps); a reference epoch's points are cached by
+ * epoch id (ingest never changes an epoch's observations: a revision is a new epoch id). So a live
+ * epoch's results need no query of their own: the ingest service plans them (`planResults`) before it
+ * stores the observations, computes them while the server stores those, then writes them (`storeResults`).
  */
 import type { Prisma } from "../db/generated/client.ts";
 import type { Db } from "../db/client.ts";
@@ -70,7 +72,8 @@ interface PreparedGroup {
 }
 
 interface SiteElements {
-  fingerprint: string;
+  /** Site.elementsStamp when these were read. */
+  stamp: string;
   elements: ElementRow[];
   groups: Map<number, PreparedGroup>;
 }
@@ -135,33 +138,40 @@ function prepareGroup(els: ElementRow[], ref: EpochPoints): PreparedGroup {
  */
 export type EpochToCompute = { id: number; time: string; points: () => EpochPoints };
 
+/** What the results step needs of the site: its reference (before the epochs' own) and its elements' stamp (Site.elementsStamp). */
+export type ResultsHead = { siteRef: number | null; elementsStamp: string };
+
 /**
- * Computes and stores the results of every enabled element of `siteId` at each of `epochs`.
- * Returns the number of rows written. Call it inside the transaction that stored the epochs.
+ * The results of some epochs, ready to be computed without another query: the elements and every
+ * point set they need are in memory. `compute` is synchronous (the ingest service runs it while the
+ * server stores the observations); `store` writes its rows in the caller's transaction.
  */
-export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], opts: { timer?: PhaseTimer } = {}): Promise<number> {
-  if (epochs.length === 0) return 0;
+export interface ResultsPlan {
+  /** Element rows in the order the engine reads them; empty when nothing is to be computed. */
+  readonly elements: readonly ElementRow[];
+  compute(): ResultColumns;
+}
+
+/**
+ * Reads what `epochs` need for their results (the site's elements, checked against `head.elementsStamp`,
+ * and reference epochs' points, from the caches or the database) and returns the plan. `head.siteRef`
+ * is the site's reference as it will be once these epochs are stored (Site.referenceEpochId, else the
+ * site's first current epoch).
+ */
+export async function planResults(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], head: ResultsHead): Promise<ResultsPlan> {
+  const none: ResultsPlan = { elements: [], compute: () => new ResultColumns(0) };
+  if (epochs.length === 0) return none;
   const dbKey = currentDatabaseKey();
-  // One round trip: the site's reference (Site.referenceEpochId, else its first current epoch) and the fingerprint of its elements.
-  const [head] = await tx.query<{ siteRef: number | null; firstEpoch: number | null; fp: string }>(
-    `SELECT s."referenceEpochId" AS "siteRef",
-            (SELECT id FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" ORDER BY time, id LIMIT 1) AS "firstEpoch",
-            (SELECT count(*)::text || ':' || coalesce(sum(hashtext(e.id::text || '|' || e.kind || '|' || e.mode || '|' || array_to_string(e."pointCodes", chr(31)) || '|' || coalesce(e."referenceEpochId"::text, '-'))::bigint), 0)::text
-               FROM "Element" e WHERE e."siteId" = s.id AND e."disabledAt" IS NULL) AS fp
-       FROM "Site" s WHERE s.id = $1`,
-    [siteId],
-  );
-  if (!head) return 0;
-  const siteRef = head.siteRef ?? head.firstEpoch;
   const siteKey = `${dbKey}#${siteId}`;
   let site = cache().sites.get(siteKey);
-  if (!site || site.fingerprint !== head.fp) {
+  if (!site || site.stamp !== head.elementsStamp) {
     const elements = await tx.query<ElementRow>(`SELECT id, kind, mode, "pointCodes", "referenceEpochId" FROM "Element" WHERE "siteId" = $1 AND "disabledAt" IS NULL ORDER BY id`, [siteId]);
-    site = { fingerprint: head.fp, elements, groups: new Map() };
+    site = { stamp: head.elementsStamp, elements, groups: new Map() };
     cache().sites.set(siteKey, site);
   }
+  const siteElements = site;
   const elements = site.elements;
-  if (elements.length === 0) return 0;
+  if (elements.length === 0) return none;
 
   const known = new Map<number, EpochPoints>();
   const times = new Map<number, string>();
@@ -174,18 +184,20 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
   // Group the elements by reference epoch; plan triangles of a group go through the batch kernel together.
   const byRef = new Map<number, ElementRow[]>();
   for (const el of elements) {
-    const r = el.referenceEpochId ?? siteRef;
+    const r = el.referenceEpochId ?? head.siteRef;
     if (r === null) continue;
     let list = byRef.get(r);
     if (!list) byRef.set(r, (list = []));
     list.push(el);
   }
-  if (byRef.size === 0) return 0;
+  if (byRef.size === 0) return none;
   const refIds = new Set(byRef.keys());
   const points = await epochPoints(tx, dbKey, [...new Set([...refIds, ...epochIds])], known, refIds);
-  const rows = new ResultColumns(elements.length * epochIds.length);
-  opts.timer?.lap("results-read");
+  return { elements, compute: () => computeRows(siteElements, byRef, points, epochIds, times) };
+}
 
+function computeRows(site: SiteElements, byRef: Map<number, ElementRow[]>, points: Map<number, EpochPoints>, epochIds: readonly number[], times: Map<number, string>): ResultColumns {
+  const rows = new ResultColumns(site.elements.length * epochIds.length);
   for (const [refId, els] of byRef) {
     const ref = points.get(refId) ?? new Map<string, SurveyPoint>();
     // A group is prepared once per reference epoch and element set (ref points never change for an epoch id).
@@ -244,9 +256,41 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
       }
     }
   }
-  opts.timer?.lap("results-compute");
-  await copyResultRows(tx, rows, opts.timer);
-  // Live epochs (one or a few per request) are kept for the alert evaluation after commit; backfills are not.
-  if (epochIds.length <= 4) keepComputed(dbKey, rows, elements);
+  return rows;
+}
+
+/** The site's reference as stored now and its elements' stamp (one round trip). */
+export async function readResultsHead(tx: Sql, siteId: number): Promise<ResultsHead | null> {
+  const [head] = await tx.query<{ siteRef: number | null; firstEpoch: number | null; elementsStamp: string }>(
+    `SELECT s."referenceEpochId" AS "siteRef",
+            (SELECT id FROM "Epoch" WHERE "siteId" = s.id AND "isCurrent" ORDER BY time, id LIMIT 1) AS "firstEpoch",
+            s."elementsStamp"::text AS "elementsStamp"
+       FROM "Site" s WHERE s.id = $1`,
+    [siteId],
+  );
+  return head ? { siteRef: head.siteRef ?? head.firstEpoch, elementsStamp: head.elementsStamp } : null;
+}
+
+/** Writes a plan's rows in the caller's transaction; a live request's (a few epochs) are kept for the alert evaluation after commit. */
+export async function storeResults(tx: Sql, plan: ResultsPlan, rows: ResultColumns, timer?: PhaseTimer): Promise<number> {
+  if (rows.length === 0) return 0;
+  await copyResultRows(tx, rows, timer);
+  const epochs = new Set(rows.epochId.subarray(0, rows.length)).size;
+  if (epochs <= 4) keepComputed(currentDatabaseKey(), rows, plan.elements);
   return rows.length;
+}
+
+/**
+ * Computes and stores the results of every enabled element of `siteId` at each of `epochs`.
+ * Returns the number of rows written. Call it inside the transaction that stored the epochs.
+ */
+export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], opts: { timer?: PhaseTimer } = {}): Promise<number> {
+  if (epochs.length === 0) return 0;
+  const head = await readResultsHead(tx, siteId);
+  if (!head) return 0;
+  const plan = await planResults(tx, siteId, epochs, head);
+  opts.timer?.lap("results-read");
+  const rows = plan.compute();
+  opts.timer?.lap("results-compute");
+  return storeResults(tx, plan, rows, opts.timer);
 }
