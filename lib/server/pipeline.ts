@@ -11,8 +11,12 @@
 
 import type { PhaseTimer } from "./timing.ts";
 
-/** `timer`: the request's phase timer when there is one (listeners may lap their own phases on it). */
-export type EpochsCommitted = { siteId: number; epochIds: number[]; timer?: PhaseTimer };
+/**
+ * `timer`: the request's phase timer when there is one (listeners may lap their own phases on it).
+ * `afterResponse`: when the epochs came in an HTTP request, runs a task after its response has been
+ * sent (false when it cannot); a listener whose work need not hold up the response may use it.
+ */
+export type EpochsCommitted = { siteId: number; epochIds: number[]; timer?: PhaseTimer; afterResponse?: (task: () => Promise<void>) => boolean };
 export type EpochsCommittedListener = (event: EpochsCommitted) => void | Promise<void>;
 
 // Kept on globalThis so that every copy of this module (Next.js bundles, hot reloads) shares one registry.
@@ -33,11 +37,14 @@ export function onEpochsCommitted(listener: EpochsCommittedListener): () => void
   };
 }
 
-export async function afterEpochsCommitted(siteId: number, epochIds: number[], timer?: PhaseTimer): Promise<void> {
+export async function afterEpochsCommitted(siteId: number, epochIds: number[], timer?: PhaseTimer, afterResponse?: EpochsCommitted["afterResponse"]): Promise<void> {
   if (epochIds.length === 0) return;
   for (const l of [...listeners()]) {
     try {
-      await l(timer ? { siteId, epochIds: [...epochIds], timer } : { siteId, epochIds: [...epochIds] });
+      const e: EpochsCommitted = { siteId, epochIds: [...epochIds] };
+      if (timer) e.timer = timer;
+      if (afterResponse) e.afterResponse = afterResponse;
+      await l(e);
     } catch (err) {
       console.error(`epochal: an epochs-committed listener failed for site ${siteId}`, err);
     }

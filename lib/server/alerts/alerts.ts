@@ -13,6 +13,7 @@ import { AppError } from "../errors.ts";
 import { recordAudit } from "../audit.ts";
 import type { Alert, AlertEvent } from "../db/generated/client.ts";
 import { LEVELS, levelRank, type TriggerLevel } from "../../triggers/rule.ts";
+import { alertsSettled } from "./pending.ts";
 
 export type AlertStateName = "watch" | "open" | "cleared";
 
@@ -72,6 +73,7 @@ export async function listAlerts(
           ? { clearedAt: { not: null } }
           : {};
   const levels = q.level ? LEVELS.filter((l) => levelRank(l) >= levelRank(q.level!)) : undefined;
+  await alertsSettled(siteId);
   return db.alert.findMany({
     where: { siteId, ...where, ...(levels ? { level: { in: [...levels] } } : {}) },
     include: withNames,
@@ -81,6 +83,7 @@ export async function listAlerts(
 }
 
 export async function getAlert(siteId: number, id: number, db: Db = getDb()): Promise<{ alert: AlertWithNames; events: AlertEvent[] }> {
+  await alertsSettled(siteId);
   const alert = await db.alert.findFirst({ where: { id, siteId }, include: withNames });
   if (!alert) throw new AppError("not_found", `No alert ${id} on this site.`);
   const events = await db.alertEvent.findMany({ where: { alertId: id }, orderBy: { id: "asc" } });

@@ -27,7 +27,7 @@ import { recordAlertMails } from "../mail/outgoing.ts";
 import type { AlertMailFacts } from "../mail/compose.ts";
 import { mailConfigFromEnv, type MailConfig } from "../mail/config.ts";
 import { enqueueMails, scheduleDigest, startMailWorker } from "../mail/queue.ts";
-import { withPgTransaction, type Sql } from "../ingest/pg-tx.ts";
+import { pgQuery, withPgTransaction, type Sql } from "../ingest/pg-tx.ts";
 import type { PhaseTimer } from "../timing.ts";
 import { intArray } from "../ingest/sql-arrays.ts";
 import { readInputs, sampleOf, type ElementHead } from "./inputs.ts";
@@ -42,11 +42,17 @@ export type EvaluateOptions = {
   k?: number;
   /** Phase laps (the ingest route's Server-Timing). */
   timer?: PhaseTimer;
+  /**
+   * Evaluate only those of the epochs still in the alert backlog (backlog.ts), as the pipeline and the
+   * sweep do; without it every given epoch is evaluated. Either way their backlog rows are removed.
+   */
+  onlyQueued?: boolean;
 };
 
 export type TransitionRecord = { ruleId: number; elementId: number; epochId: number; alertId: number | null; transition: Transition };
 
-export type EvaluationReport = { transitions: TransitionRecord[]; queuedMailIds: number[]; digestItems: number };
+/** `evaluatedEpochs`: the epochs run through the rules (0 when the site has no enabled rule). */
+export type EvaluationReport = { transitions: TransitionRecord[]; queuedMailIds: number[]; digestItems: number; evaluatedEpochs: number };
 
 function stateOf(a: Pick<Alert, "clearedAt" | "level" | "isSignificant"> | null): AlertState {
   if (!a || a.clearedAt || !isTriggerLevel(a.level)) return { status: "none" };
@@ -59,12 +65,16 @@ function responseFor(rule: { responseReview: string; responseAlert: string; resp
 
 export async function evaluateAlerts(_db: Db, siteId: number, epochIds: readonly number[], opts: EvaluateOptions): Promise<EvaluationReport> {
   const k = opts.k ?? DEFAULT_SIGNIFICANCE_K;
-  const empty = (): EvaluationReport => ({ transitions: [], queuedMailIds: [], digestItems: 0 });
+  const empty = (): EvaluationReport => ({ transitions: [], queuedMailIds: [], digestItems: 0, evaluatedEpochs: 0 });
   if (epochIds.length === 0) return empty();
+  const ids = intArray([...epochIds]);
   // Most epochs of most sites meet no enabled rule: that is answered without opening a transaction.
   const inputs = await readInputs(siteId, epochIds, opts.timer);
-  if (!inputs) return empty();
-  const { rules, epochs, elements, rowAt, prevRow } = inputs;
+  if (!inputs) {
+    await pgQuery(`DELETE FROM "AlertBacklog" WHERE "epochId" = ANY($1::int[])`, [ids]);
+    return empty();
+  }
+  const { rules, elements, rowAt, prevRow } = inputs;
   // What a mail names (the site, the recipients, the element), read once each and only when a mail is written.
   let mailSite: { site: AlertMailFacts["site"]; recipients: { email: string; minLevel: string; digest: boolean }[] } | null = null;
   const siteForMail = async (sql: Sql) => {
@@ -88,6 +98,12 @@ export async function evaluateAlerts(_db: Db, siteId: number, epochIds: readonly
     async (tx) => {
       await tx.query(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, [ALERT_LOCK_CLASS, siteId]);
       const report = empty();
+      // Taken out of the backlog in the transaction that writes their alerts: evaluated once.
+      const claimed = await tx.query<{ epochId: number }>(`DELETE FROM "AlertBacklog" WHERE "epochId" = ANY($1::int[]) RETURNING "epochId"`, [ids]);
+      const queued = new Set(claimed.map((c) => c.epochId));
+      const epochs = opts.onlyQueued ? inputs.epochs.filter((e) => queued.has(e.id)) : inputs.epochs;
+      report.evaluatedEpochs = epochs.length;
+      if (epochs.length === 0) return report;
       const openAlerts = await tx.query<Alert & { lastTime: Date | null }>(
         `SELECT a.*, e."time" AS "lastTime" FROM "Alert" a LEFT JOIN "Epoch" e ON e.id = a."lastEpochId"
           WHERE a."siteId" = $1 AND a."clearedAt" IS NULL AND a."ruleId" = ANY($2::int[]) ORDER BY a.id`,
@@ -224,7 +240,7 @@ export async function evaluateAlerts(_db: Db, siteId: number, epochIds: readonly
  * (startMailWorker) decides between SMTP and the outbox; if the queue cannot start, alerts are still
  * evaluated from the environment's settings and the mails wait as `queued` for the next worker start.
  */
-export async function runAlerting(siteId: number, epochIds: readonly number[], timer?: PhaseTimer): Promise<EvaluationReport> {
+export async function runAlerting(siteId: number, epochIds: readonly number[], timer?: PhaseTimer, opts: { onlyQueued?: boolean } = {}): Promise<EvaluationReport> {
   let config: MailConfig;
   let queueUp = true;
   try {
@@ -234,7 +250,7 @@ export async function runAlerting(siteId: number, epochIds: readonly number[], t
     config = mailConfigFromEnv();
     queueUp = false;
   }
-  const report = await evaluateAlerts(getDb(), siteId, epochIds, { hasSmtp: config.smtpUrl !== null, publicUrl: config.publicUrl, timer });
+  const report = await evaluateAlerts(getDb(), siteId, epochIds, { hasSmtp: config.smtpUrl !== null, publicUrl: config.publicUrl, timer, onlyQueued: opts.onlyQueued });
   if (queueUp) {
     await enqueueMails(report.queuedMailIds);
     if (report.digestItems > 0) await scheduleDigest(siteId);

@@ -6,6 +6,7 @@
  */
 import "server-only";
 import { getDb } from "../db/client.ts";
+import { alertsSettled } from "../alerts/pending.ts";
 import { LEVELS, levelRank, type TriggerLevel } from "../../triggers/rule.ts";
 
 export type AlertStateFilter = "open" | "cleared" | "all";
@@ -37,6 +38,7 @@ export async function listAlertsAcross(
   q: { state: AlertStateFilter; minLevel?: TriggerLevel; elementId?: number; limit?: number },
 ): Promise<AlertRow[]> {
   if (siteIds.length === 0) return [];
+  await alertsSettled(siteIds);
   const levels = q.minLevel ? LEVELS.filter((l) => levelRank(l) >= levelRank(q.minLevel!)) : undefined;
   const rows = await getDb().alert.findMany({
     where: {
@@ -87,6 +89,7 @@ export interface OutboxRow {
 /** Mails held in the outbox (no SMTP configured) and failed ones, newest first. */
 export async function listOutboxAcross(siteIds: number[], limit = 50): Promise<OutboxRow[]> {
   if (siteIds.length === 0) return [];
+  await alertsSettled(siteIds);
   const rows = await getDb().mailMessage.findMany({
     where: { siteId: { in: siteIds }, status: { in: ["outbox", "failed"] } },
     include: { site: { select: { slug: true, timeZone: true } } },

@@ -4,6 +4,7 @@
  */
 import "server-only";
 import { getDb } from "../db/client.ts";
+import { alertsSettled } from "../alerts/pending.ts";
 import { intList } from "./sql.ts";
 import { referenceEpochIdOf } from "./site.ts";
 
@@ -39,6 +40,7 @@ export async function getSitesOverview(user: { userId: number; isAdmin: boolean 
   const sites = await listUserSites(user);
   if (sites.length === 0) return [];
   const ids = sites.map((s) => s.id);
+  await alertsSettled(ids);
   const [alertGroups, pointCounts, elementCounts, siteRows] = await Promise.all([
     db.alert.groupBy({ by: ["siteId", "level"], where: { siteId: { in: ids }, clearedAt: null }, _count: { _all: true } }),
     db.point.groupBy({ by: ["siteId"], where: { siteId: { in: ids } }, _count: { _all: true } }),

@@ -52,6 +52,11 @@ export interface IngestOptions {
   nowMs?: number;
   /** Test hook: called at each stage inside the transaction; throwing there must roll everything back. */
   failpoint?: (stage: IngestStage) => void | Promise<void>;
+  /**
+   * Runs a task after the HTTP response has been sent (the route's next/server `after`); false when it
+   * cannot. Given, the alert evaluation of the stored epochs follows the response (lib/server/alerts/backlog.ts).
+   */
+  afterResponse?: (task: () => Promise<void>) => boolean;
   /** Phase timings (the route's Server-Timing header): bounds, lock, points, classify, epochs, observations, results-*, audit, commit, after-commit. */
   timer?: PhaseTimer;
 }
@@ -165,7 +170,7 @@ export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOpt
   const result = await withPgTransaction((tx) => run(tx, input, opts), { timeoutMs: transactionTimeoutMs() });
   opts.timer?.lap("commit");
   const committed = result.epochs.filter((e) => e.outcome !== "unchanged").map((e) => e.id);
-  await afterEpochsCommitted(opts.siteId, committed, opts.timer);
+  await afterEpochsCommitted(opts.siteId, committed, opts.timer, opts.afterResponse);
   opts.timer?.lap("after-commit");
   return result;
 }
@@ -314,10 +319,21 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
       const after = auditSafe({ time: e.time, observations: e.observations, contentHash: e.contentHash, revision: e.revision, source: opts.source ?? "api" });
       return { action: p.previous ? "epoch.revise" : "epoch.upload", entityId: String(e.id), before: before === null ? null : JSON.stringify(before), after: after === null ? null : JSON.stringify(after) };
     });
+    // With the audit rows, the epochs' places in the alert backlog (lib/server/alerts/backlog.ts): the
+    // evaluation after commit takes them out; a sweep evaluates what a stopped process left.
     await tx.query(
-      `INSERT INTO "AuditEntry" (actor, "siteId", action, "entityType", "entityId", before, after)
+      `WITH backlog AS (INSERT INTO "AlertBacklog" ("epochId", "siteId") SELECT unnest($7::int[]), $2)
+       INSERT INTO "AuditEntry" (actor, "siteId", action, "entityType", "entityId", before, after)
        SELECT $1, $2, a, 'epoch', i, b, c FROM unnest($3::text[], $4::text[], $5::jsonb[], $6::jsonb[]) AS u(a, i, b, c)`,
-      [opts.actor, siteId, textArray(audit.map((a) => a.action)), textArray(audit.map((a) => a.entityId)), textArray(audit.map((a) => a.before)), textArray(audit.map((a) => a.after))],
+      [
+        opts.actor,
+        siteId,
+        textArray(audit.map((a) => a.action)),
+        textArray(audit.map((a) => a.entityId)),
+        textArray(audit.map((a) => a.before)),
+        textArray(audit.map((a) => a.after)),
+        intArray(plan.map((p) => (out[p.index] as StoredEpoch).id)),
+      ],
     );
     opts.timer?.lap("audit");
     // The stored epochs go to the results step as they are in memory (no re-read of what was just written).

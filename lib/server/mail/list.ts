@@ -2,8 +2,10 @@
 import "server-only";
 import { getDb, type Db } from "../db/client.ts";
 import type { MailMessage } from "../db/generated/client.ts";
+import { alertsSettled } from "../alerts/pending.ts";
 
 export async function listMails(siteId: number, q: { status: "outbox" | "queued" | "sent" | "failed" | "all"; limit: number }, db: Db = getDb()): Promise<MailMessage[]> {
+  await alertsSettled(siteId);
   // Digest items are lines of a future digest, not mails: only "all" shows them.
   return db.mailMessage.findMany({
     where: { siteId, ...(q.status === "all" ? {} : { status: q.status }) },

@@ -27,6 +27,7 @@ import { twoSidedK } from "../../strain/normal-quantile.ts";
 import { crossedLevel, higherLevel, levelRank, QUANTITY_SENSE, type BaseQuantity, type TriggerLevel } from "../../triggers/rule.ts";
 import type { FieldElement, FieldPoint } from "../../plan/field.ts";
 import type { Period } from "../schemas/reports.ts";
+import { alertsSettled } from "../alerts/pending.ts";
 
 export const MAX_ELEMENTS = 8;
 export const MAX_MOVED = 6;
@@ -165,6 +166,7 @@ function compared(sense: string, v: number): number {
 async function readAlerts(db: Db, siteId: number, period: Period): Promise<ReportAlert[]> {
   const from = new Date(period.fromMs);
   const to = new Date(period.toMs);
+  await alertsSettled(siteId);
   const alerts = await db.alert.findMany({
     where: {
       siteId,

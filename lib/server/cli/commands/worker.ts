@@ -7,11 +7,13 @@ import { closeDb } from "../../db/client.ts";
 import { applyMigrations } from "../../db/migrate.ts";
 import { mailConfigFromEnv } from "../../mail/config.ts";
 import { startMailWorker, stopMailWorker } from "../../mail/queue.ts";
+import { startBacklogSweep } from "../../alerts/register.ts";
 
 export const help = `Usage: epochal worker
 
 Runs the job queue (PostgreSQL, schema EPOCHAL_JOBS_SCHEMA, default pgboss): delivers queued alert
-mails over SMTP_URL with retries and backoff, and writes digests. Without SMTP_URL, mails stay in the
+mails over SMTP_URL with retries and backoff, writes digests, and every minute evaluates the alerts of
+epochs a stopped server left unevaluated (the alert backlog). Without SMTP_URL, mails stay in the
 site's outbox. The dashboard server runs the same worker itself; this command is for running it apart.
 
 Environment: DATABASE_URL (else the embedded database), SMTP_URL, EPOCHAL_MAIL_FROM, EPOCHAL_PUBLIC_URL,
@@ -32,6 +34,7 @@ export async function run(args: string[]): Promise<number> {
   const target = await openDatabaseUrl();
   await applyMigrations(target.url);
   await startMailWorker(config);
+  await startBacklogSweep();
   console.log(
     `epochal worker: running (jobs schema ${config.jobsSchema}; ${config.smtpUrl ? `mail via ${new URL(config.smtpUrl).host}` : "no SMTP_URL: mails kept in the outbox"})`,
   );
