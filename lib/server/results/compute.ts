@@ -24,7 +24,7 @@ import { intArray } from "../ingest/sql-arrays.ts";
 import { currentDatabaseKey, type Sql } from "../ingest/pg-tx.ts";
 import type { PhaseTimer } from "../timing.ts";
 import { keepComputed, ResultColumns, type ResultRow } from "./columns.ts";
-import { copyResultRows } from "./store.ts";
+import { copyResultRows, type EncodedResultRows } from "./store.ts";
 
 export type Tx = Prisma.TransactionClient | Db;
 
@@ -271,10 +271,10 @@ export async function readResultsHead(tx: Sql, siteId: number): Promise<ResultsH
   return head ? { siteRef: head.siteRef ?? head.firstEpoch, elementsStamp: head.elementsStamp } : null;
 }
 
-/** Writes a plan's rows in the caller's transaction; a live request's (a few epochs) are kept for the alert evaluation after commit. */
-export async function storeResults(tx: Sql, plan: ResultsPlan, rows: ResultColumns, timer?: PhaseTimer): Promise<number> {
+/** Writes a plan's rows (`encoded`: their COPY streams, when made beforehand) in the caller's transaction; a live request's (a few epochs) are kept for the alert evaluation after commit. */
+export async function storeResults(tx: Sql, plan: ResultsPlan, rows: ResultColumns, timer?: PhaseTimer, encoded?: EncodedResultRows): Promise<number> {
   if (rows.length === 0) return 0;
-  await copyResultRows(tx, rows, timer);
+  await copyResultRows(tx, rows, timer, encoded);
   const epochs = new Set(rows.epochId.subarray(0, rows.length)).size;
   if (epochs <= 4) keepComputed(currentDatabaseKey(), rows, plan.elements);
   return rows.length;

@@ -19,7 +19,21 @@ const RESULT_COLUMNS = ["elementId", "epochId", "referenceEpochId", "time", "sta
  * scan, batched heap inserts). COPY has no ON CONFLICT: it is for rows of epochs stored in the
  * same transaction, which cannot exist yet.
  */
-export async function copyResultRows(tx: Sql, rows: ResultColumns, timer?: PhaseTimer): Promise<void> {
+export async function copyResultRows(tx: Sql, rows: ResultColumns, timer?: PhaseTimer, encoded?: EncodedResultRows): Promise<void> {
+  const chunks = encoded ?? encodeResultRows(rows);
+  if (!encoded) timer?.lap("results-encode");
+  for (const c of chunks) {
+    const n = await tx.copyFrom(`COPY "ElementResult" (${RESULT_COLUMNS}) FROM STDIN (FORMAT binary)`, c.data);
+    if (n !== c.rows) throw new Error(`results: COPY stored ${n} rows of ${c.rows}`);
+    timer?.lap("results-insert");
+  }
+}
+
+/** A COPY stream per statement of up to RESULT_CHUNK rows. */
+export type EncodedResultRows = { data: Uint8Array; rows: number }[];
+
+/** The binary COPY streams of the rows (the ingest service encodes them while the server stores the observations). */
+export function encodeResultRows(rows: ResultColumns): EncodedResultRows {
   const columns: CopyColumn[] = [
     { type: "int4", values: rows.elementId },
     { type: "int4", values: rows.epochId },
@@ -28,12 +42,10 @@ export async function copyResultRows(tx: Sql, rows: ResultColumns, timer?: Phase
     { type: "text", values: rows.status },
     ...STORED_VALUE_KEYS.map((k): CopyColumn => ({ type: "float8", values: rows.values[k] })),
   ];
+  const out: EncodedResultRows = [];
   for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
     const j = Math.min(rows.length, i + RESULT_CHUNK);
-    const data = writeCopyBinary(columns, i, j);
-    timer?.lap("results-encode");
-    const n = await tx.copyFrom(`COPY "ElementResult" (${RESULT_COLUMNS}) FROM STDIN (FORMAT binary)`, data);
-    if (n !== j - i) throw new Error(`results: COPY stored ${n} rows of ${j - i}`);
-    timer?.lap("results-insert");
+    out.push({ data: writeCopyBinary(columns, i, j), rows: j - i });
   }
+  return out;
 }
