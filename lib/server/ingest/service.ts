@@ -60,7 +60,7 @@ export interface IngestOptions {
    * cannot. Given, the alert evaluation of the stored epochs follows the response (lib/server/alerts/backlog.ts).
    */
   afterResponse?: (task: () => Promise<void>) => boolean;
-  /** Phase timings (the route's Server-Timing header): bounds, lock, points, classify, epochs, observations, results-*, audit, commit, after-commit. */
+  /** Phase timings (the route's Server-Timing header): bounds, lock, points, classify, epochs, observations-encode, hash, observations, results-*, audit, commit, after-commit. */
   timer?: PhaseTimer;
 }
 
@@ -301,6 +301,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
       opts.timer,
       () => {
         plan.forEach((p) => hashOf(p.index));
+        opts.timer?.lap("hash");
         if (resultsPlan) {
           const rows = resultsPlan.compute();
           opts.timer?.lap("results-compute");
