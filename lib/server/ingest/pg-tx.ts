@@ -9,7 +9,7 @@
  * process exit when idle.
  */
 import pg from "pg";
-import { databaseUrl } from "../db/client.ts";
+import { databaseUrl, SESSION_OPTIONS } from "../db/client.ts";
 
 /** The one method the ingest and results code needs: a parameterised statement, rows back. */
 export interface Sql {
@@ -27,7 +27,7 @@ function pool(url: string): pg.Pool {
   let p = h[KEY].get(url);
   if (!p) {
     const max = Number(process.env.EPOCHAL_INGEST_POOL ?? 4);
-    p = new pg.Pool({ connectionString: url, max: Number.isFinite(max) && max > 0 ? max : 4, idleTimeoutMillis: 10_000, allowExitOnIdle: true });
+    p = new pg.Pool({ connectionString: url, options: SESSION_OPTIONS, max: Number.isFinite(max) && max > 0 ? max : 4, idleTimeoutMillis: 10_000, allowExitOnIdle: true });
     // An idle client that loses its server (restart) must not crash the process; the next query reconnects.
     p.on("error", (err) => console.error("epochal: an idle ingest database connection failed", err.message));
     h[KEY].set(url, p);

@@ -238,12 +238,14 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   // the server stores the observations (below), since only the Epoch row needs them.
   const hashes: (string | null)[] = input.map(() => null);
   const hashOf = (i: number): string => (hashes[i] ??= epochContentHash(resolved[i]));
+  // One index probe per time (LATERAL): the cost follows the request, not the site's number of epochs
+  // (with "time = ANY(…)" the planner may scan all of the site's current epochs when its statistics lag a backfill).
   const existing = await tx.query<{ id: number; time: Date; contentHash: string; revision: number; n: number; maxRevision: number }>(
     `SELECT e.id, e.time, e."contentHash", e.revision,
             (SELECT count(*) FROM "Observation" o WHERE o."epochId" = e.id)::int AS n,
             (SELECT max(e2.revision) FROM "Epoch" e2 WHERE e2."siteId" = e."siteId" AND e2.time = e.time)::int AS "maxRevision"
-       FROM "Epoch" e
-      WHERE e."siteId" = $1 AND e."isCurrent" AND e.time = ANY($2::timestamptz[])`,
+       FROM unnest($2::timestamptz[]) AS t(time)
+      CROSS JOIN LATERAL (SELECT * FROM "Epoch" x WHERE x."siteId" = $1 AND x."isCurrent" AND x.time = t.time OFFSET 0) e`,
     [siteId, textArray(input.map((e) => e.time))],
   );
   const byTime = new Map(existing.map((e) => [e.time.getTime(), e]));
