@@ -16,6 +16,12 @@ export interface Sql {
   query<R>(text: string, values?: readonly unknown[]): Promise<R[]>;
   /** `COPY … FROM STDIN` with `data` as its whole input (lib/formats/pg-copy-binary.ts writes binary streams); answers the rows copied. */
   copyFrom(text: string, data: Uint8Array, onSent?: () => void): Promise<number>;
+  /**
+   * `COPY … FROM STDIN` whose input `produce` writes with `send` as it makes it, once the server is
+   * ready for it (the server stores each part while the next is made). What `produce` throws aborts
+   * the COPY (CopyFail) and is thrown from here.
+   */
+  copyFromProducer(text: string, produce: (send: (chunk: Uint8Array) => void) => void): Promise<number>;
 }
 
 const KEY = Symbol.for("epochal.ingest.pgPools");
@@ -51,6 +57,11 @@ export async function withPgTransaction<T>(fn: (sql: Sql) => Promise<T>, opts: {
     copyFrom: (text: string, data: Uint8Array, onSent?: () => void): Promise<number> =>
       new Promise((resolve, reject) => {
         client.query(new CopyInQuery(text, data, (err, res) => (err ? reject(err) : resolve(res?.rowCount ?? 0)), onSent));
+      }),
+    copyFromProducer: (text: string, produce: (send: (chunk: Uint8Array) => void) => void): Promise<number> =>
+      new Promise((resolve, reject) => {
+        const q: ProducedCopyInQuery = new ProducedCopyInQuery(text, produce, (err, res) => (q.failure ? reject(q.failure.error) : err ? reject(err) : resolve(res?.rowCount ?? 0)));
+        client.query(q);
       }),
   };
   let broken = false;
@@ -95,6 +106,28 @@ class CopyInQuery extends pg.Query {
     connection.endCopyFrom();
     // Deferred past this protocol callback, so that an exception in it cannot break the connection's parser.
     if (this.onSent) setImmediate(this.onSent);
+  }
+}
+
+/** Streams what a producer writes as the data of one `COPY … FROM STDIN`, as it writes it. */
+class ProducedCopyInQuery extends pg.Query {
+  failure: { error: unknown } | null = null;
+  constructor(
+    text: string,
+    private readonly produce: (send: (chunk: Uint8Array) => void) => void,
+    callback: (err: Error | undefined, result?: { rowCount: number | null }) => void,
+  ) {
+    super(text, callback as never);
+  }
+  handleCopyInResponse(connection: { sendCopyFromChunk(chunk: Buffer): void; endCopyFrom(): void; sendCopyFail(msg: string): void }): void {
+    // Runs inside the connection's protocol callback: nothing may escape it.
+    try {
+      this.produce((chunk) => connection.sendCopyFromChunk(Buffer.from(chunk.buffer, chunk.byteOffset, chunk.byteLength)));
+      connection.endCopyFrom();
+    } catch (error) {
+      this.failure = { error };
+      connection.sendCopyFail(error instanceof Error ? error.message : String(error));
+    }
   }
 }
 

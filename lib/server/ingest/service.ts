@@ -10,10 +10,11 @@
  *   2. each epoch is compared with the current revision at its time by content hash:
  *      same hash → unchanged (its id is returned); different → conflict (409), or with `revise` a new
  *      revision (the old one stays, marked not current); none → created;
- *   3. observations are written with binary COPY; while the server stores them this process hashes
- *      the new epochs and computes and encodes their element results (when the site's reference is
- *      already known); then the Epoch rows (bulk INSERT … SELECT FROM unnest(…));
- *   4. one audit row per stored epoch; the element result rows (lib/server/results);
+ *   3. observations are written with binary COPY (while the server stores them this process hashes
+ *      the new epochs and, for a live request whose site reference is already known, computes their
+ *      element results); then the Epoch rows (bulk INSERT … SELECT FROM unnest(…));
+ *   4. one audit row and one alert-backlog row per stored epoch; the element result rows
+ *      (lib/server/results), streamed to the server by binary COPY slice by slice;
  * then, after commit, `afterEpochsCommitted` (lib/server/pipeline.ts). Any failure rolls everything back.
  * Ingest never updates coordinates and never deletes; the only update is the isCurrent flag of a
  * revised epoch.
@@ -25,7 +26,7 @@ import { auditSafe } from "../audit.ts";
 import { checkEpochBounds } from "../schemas/ingest.ts";
 import { computeResultsForEpochs, planResults, storeResults, type EpochToCompute, type ResultsPlan } from "../results/compute.ts";
 import type { ResultColumns } from "../results/columns.ts";
-import { encodeResultRows, type EncodedResultRows } from "../results/store.ts";
+import { STREAM_ROWS } from "../results/store.ts";
 import { afterEpochsCommitted } from "../pipeline.ts";
 import { intArray, textArray } from "./sql-arrays.ts";
 import { CopyBinaryWriter } from "../../formats/pg-copy-binary.ts";
@@ -35,8 +36,6 @@ import type { PhaseTimer } from "../timing.ts";
 
 /** First key of the two-key advisory lock: "EPCH" in ASCII, so our locks are recognisable in pg_locks. */
 export const INGEST_LOCK_NAMESPACE = 0x45504348;
-/** Result rows encoded while the observations are stored, at most (a live epoch has one per element). */
-const PRE_ENCODE_ROWS = 50_000;
 /** Observations per COPY statement (about 18 MB of binary data at the most). */
 const OBSERVATION_CHUNK = 200_000;
 
@@ -288,14 +287,14 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     const first = site.firstId !== null && site.firstTime !== null ? { id: site.firstId, ms: site.firstTime.getTime() } : null;
     const siteRef =
       site.siteRef ?? (first && !revisedIds.includes(first.id) && plan.every((p) => Date.parse(input[p.index].time) > first.ms) ? first.id : undefined);
-    // With the reference known, the results are planned now and computed while the server stores the observations.
+    // With the reference known, the results are planned now (no query after the inserts), computed
+    // while the server stores the observations, and streamed to it after the Epoch rows.
     let resultsPlan: ResultsPlan | null = null;
     if (siteRef !== undefined) {
       resultsPlan = await planResults(tx, siteId, toCompute, { siteRef, elementsStamp: site.elementsStamp });
       opts.timer?.lap("results-read");
     }
-    let resultRows: ResultColumns | null = null;
-    let encodedRows: EncodedResultRows | undefined;
+    let resultRows: ResultColumns | undefined;
     await insertObservations(
       tx,
       plan.map((p) => ({ epochId: (out[p.index] as StoredEpoch).id, obs: resolved[p.index] })),
@@ -304,15 +303,10 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
       () => {
         plan.forEach((p) => hashOf(p.index));
         opts.timer?.lap("hash");
-        if (resultsPlan) {
-          const rows = resultsPlan.compute();
+        // A live request's results too (a backfill's are computed later, statement by statement: memory).
+        if (resultsPlan && resultsPlan.rowCount <= STREAM_ROWS) {
+          resultRows = resultsPlan.compute();
           opts.timer?.lap("results-compute");
-          // A live request's rows are encoded here too; a backfill's are encoded statement by statement later (memory).
-          if (rows.length <= PRE_ENCODE_ROWS) {
-            encodedRows = encodeResultRows(rows);
-            opts.timer?.lap("results-encode");
-          }
-          resultRows = rows;
         }
       },
     );
@@ -350,7 +344,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     );
     opts.timer?.lap("audit");
     // The stored epochs go to the results step as they are in memory (no re-read of what was just written).
-    results = resultsPlan && resultRows ? await storeResults(tx, resultsPlan, resultRows, opts.timer, encodedRows) : await computeResultsForEpochs(tx, siteId, toCompute, { timer: opts.timer });
+    results = resultsPlan ? await storeResults(tx, resultsPlan, opts.timer, resultRows) : await computeResultsForEpochs(tx, siteId, toCompute, { timer: opts.timer });
     await opts.failpoint?.("after-results");
   }
   const newPoints = unknown;

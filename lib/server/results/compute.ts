@@ -12,7 +12,7 @@
  * re-baseline by any writer (migration site_cache_stamps); a reference epoch's points are cached by
  * epoch id (ingest never changes an epoch's observations: a revision is a new epoch id). So a live
  * epoch's results need no query of their own: the ingest service plans them (`planResults`) before it
- * stores the observations, computes them while the server stores those, then writes them (`storeResults`).
+ * stores the observations, and `storeResults` streams them to the server as they are computed.
  */
 import type { Prisma } from "../db/generated/client.ts";
 import type { Db } from "../db/client.ts";
@@ -24,7 +24,7 @@ import { intArray } from "../ingest/sql-arrays.ts";
 import { currentDatabaseKey, type Sql } from "../ingest/pg-tx.ts";
 import type { PhaseTimer } from "../timing.ts";
 import { keepComputed, ResultColumns, type ResultRow } from "./columns.ts";
-import { copyResultRows, type EncodedResultRows } from "./store.ts";
+import { copyResultRows, STREAM_ROWS, streamResultRows } from "./store.ts";
 
 export type Tx = Prisma.TransactionClient | Db;
 
@@ -149,7 +149,10 @@ export type ResultsHead = { siteRef: number | null; elementsStamp: string };
 export interface ResultsPlan {
   /** Element rows in the order the engine reads them; empty when nothing is to be computed. */
   readonly elements: readonly ElementRow[];
-  compute(): ResultColumns;
+  /** Rows `compute` gives, at the most (elements × epochs). */
+  readonly rowCount: number;
+  /** `onRows`: called with the columns whenever more rows are in them (to stream them on). */
+  compute(onRows?: (rows: ResultColumns) => void): ResultColumns;
 }
 
 /**
@@ -159,7 +162,7 @@ export interface ResultsPlan {
  * site's first current epoch).
  */
 export async function planResults(tx: Sql, siteId: number, epochs: readonly EpochToCompute[], head: ResultsHead): Promise<ResultsPlan> {
-  const none: ResultsPlan = { elements: [], compute: () => new ResultColumns(0) };
+  const none: ResultsPlan = { elements: [], rowCount: 0, compute: () => new ResultColumns(0) };
   if (epochs.length === 0) return none;
   const dbKey = currentDatabaseKey();
   const siteKey = `${dbKey}#${siteId}`;
@@ -193,10 +196,25 @@ export async function planResults(tx: Sql, siteId: number, epochs: readonly Epoc
   if (byRef.size === 0) return none;
   const refIds = new Set(byRef.keys());
   const points = await epochPoints(tx, dbKey, [...new Set([...refIds, ...epochIds])], known, refIds);
-  return { elements, compute: () => computeRows(siteElements, byRef, points, epochIds, times) };
+  return { elements, rowCount: elements.length * epochIds.length, compute: (onRows) => computeRows(siteElements, byRef, points, epochIds, times, onRows) };
 }
 
-function computeRows(site: SiteElements, byRef: Map<number, ElementRow[]>, points: Map<number, EpochPoints>, epochIds: readonly number[], times: Map<number, string>): ResultColumns {
+/** Triangles per kernel call when rows are streamed as they are computed (`onRows`). */
+const STREAM_SLICE = 1_000;
+
+/**
+ * Computes every element at every epoch. `onRows`, when given, is called with the columns each time
+ * more rows are in them (after the per-element rows of an epoch and after every slice of triangles),
+ * so that a caller can send them on while the rest is computed.
+ */
+function computeRows(
+  site: SiteElements,
+  byRef: Map<number, ElementRow[]>,
+  points: Map<number, EpochPoints>,
+  epochIds: readonly number[],
+  times: Map<number, string>,
+  onRows?: (rows: ResultColumns) => void,
+): ResultColumns {
   const rows = new ResultColumns(site.elements.length * epochIds.length);
   for (const [refId, els] of byRef) {
     const ref = points.get(refId) ?? new Map<string, SurveyPoint>();
@@ -212,51 +230,67 @@ function computeRows(site: SiteElements, byRef: Map<number, ElementRow[]>, point
       const timeIso = times.get(epochId) as string;
       const rowHead = { epochId, referenceEpochId: refId, timeIso };
       for (const el of others) rows.push(elementRow(el, ref, cur, { ...rowHead, elementId: el.id }));
+      if (others.length > 0) onRows?.(rows);
       // Batch: only triangles whose three points are in this epoch; the rest take the per-element path (missing-point).
-      const n = batchable.length;
-      if (n === 0) continue;
-      const curXY = new Float64Array(6 * n);
-      const sigmaCur = new Float64Array(6 * n);
-      const inBatch = new Uint8Array(n);
-      for (let t = 0; t < n; t++) {
-        const codes = batchable[t].pointCodes;
-        const A = cur.get(codes[0]), B = cur.get(codes[1]), C = cur.get(codes[2]);
-        if (!A || !B || !C) {
-          rows.push(elementRow(batchable[t], ref, cur, { ...rowHead, elementId: batchable[t].id }));
-          // Any finite triangle keeps the kernel away from NaN handling; its slot is not read.
-          curXY.set(group.refXY.subarray(6 * t, 6 * t + 6), 6 * t);
-          continue;
-        }
-        inBatch[t] = 1;
-        const o = 6 * t;
-        curXY[o] = A.east; curXY[o + 1] = A.north; curXY[o + 2] = B.east; curXY[o + 3] = B.north; curXY[o + 4] = C.east; curXY[o + 5] = C.north;
-        sigmaCur[o] = A.sigmaEast; sigmaCur[o + 1] = A.sigmaNorth; sigmaCur[o + 2] = B.sigmaEast; sigmaCur[o + 3] = B.sigmaNorth; sigmaCur[o + 4] = C.sigmaEast; sigmaCur[o + 5] = C.sigmaNorth;
-      }
-      const out = createTriangleBatchOut(n, true);
-      computeTriangleBatch({ refXY: group.refXY, curXY, sigmaRef: group.sigmaRef, sigmaCur }, out);
-      const v = rows.values;
-      const sGMax = out.sigmaGreenMax as Float64Array, sGMin = out.sigmaGreenMin as Float64Array, sSh = out.sigmaMaxShear as Float64Array, sAr = out.sigmaArealStrain as Float64Array;
-      for (let s = 0; s < n; s++) {
-        if (inBatch[s] === 0) continue;
-        const ok = out.status[s] === BATCH_OK;
-        const i = rows.add(batchable[s].id, epochId, refId, timeIso, ok ? "ok" : "degenerate");
-        if (!ok) continue;
-        // A non-finite azimuth (no unique direction) is stored as NULL, as on the per-element path.
-        v.greenMax[i] = out.greenMax[s];
-        v.greenMin[i] = out.greenMin[s];
-        v.maxShear[i] = out.maxShear[s];
-        v.arealStrain[i] = out.arealStrain[s];
-        v.rotationDeg[i] = out.rotationDeg[s];
-        const az = out.azimuthMaxDeg[s];
-        v.azimuthMaxDeg[i] = Number.isFinite(az) ? az : NaN;
-        v.sigmaGreenMax[i] = sGMax[s];
-        v.sigmaGreenMin[i] = sGMin[s];
-        v.sigmaMaxShear[i] = sSh[s];
-        v.sigmaArealStrain[i] = sAr[s];
+      const slice = onRows ? STREAM_SLICE : batchable.length;
+      for (let a = 0; a < batchable.length; a += slice) {
+        const b = Math.min(batchable.length, a + slice);
+        batchRows(rows, group, a, b, cur, ref, rowHead);
+        onRows?.(rows);
       }
     }
   }
   return rows;
+}
+
+/** Triangles [a, b) of a group at one epoch through the batch kernel, appended to `rows`. */
+function batchRows(rows: ResultColumns, group: PreparedGroup, a: number, b: number, cur: EpochPoints, ref: EpochPoints, rowHead: { epochId: number; referenceEpochId: number; timeIso: string }): void {
+  const { batchable } = group;
+  const { epochId, referenceEpochId: refId, timeIso } = rowHead;
+  const n = b - a;
+  if (n <= 0) return;
+  const refXY = group.refXY.subarray(6 * a, 6 * b);
+  const sigmaRef = group.sigmaRef.subarray(6 * a, 6 * b);
+  const curXY = new Float64Array(6 * n);
+  const sigmaCur = new Float64Array(6 * n);
+  const inBatch = new Uint8Array(n);
+  for (let t = 0; t < n; t++) {
+    const el = batchable[a + t];
+    const codes = el.pointCodes;
+    const A = cur.get(codes[0]), B = cur.get(codes[1]), C = cur.get(codes[2]);
+    if (!A || !B || !C) {
+      rows.push(elementRow(el, ref, cur, { ...rowHead, elementId: el.id }));
+      // Any finite triangle keeps the kernel away from NaN handling; its slot is not read.
+      curXY.set(refXY.subarray(6 * t, 6 * t + 6), 6 * t);
+      continue;
+    }
+    inBatch[t] = 1;
+    const o = 6 * t;
+    curXY[o] = A.east; curXY[o + 1] = A.north; curXY[o + 2] = B.east; curXY[o + 3] = B.north; curXY[o + 4] = C.east; curXY[o + 5] = C.north;
+    sigmaCur[o] = A.sigmaEast; sigmaCur[o + 1] = A.sigmaNorth; sigmaCur[o + 2] = B.sigmaEast; sigmaCur[o + 3] = B.sigmaNorth; sigmaCur[o + 4] = C.sigmaEast; sigmaCur[o + 5] = C.sigmaNorth;
+  }
+  const out = createTriangleBatchOut(n, true);
+  computeTriangleBatch({ refXY, curXY, sigmaRef, sigmaCur }, out);
+  const v = rows.values;
+  const sGMax = out.sigmaGreenMax as Float64Array, sGMin = out.sigmaGreenMin as Float64Array, sSh = out.sigmaMaxShear as Float64Array, sAr = out.sigmaArealStrain as Float64Array;
+  for (let s = 0; s < n; s++) {
+    if (inBatch[s] === 0) continue;
+    const ok = out.status[s] === BATCH_OK;
+    const i = rows.add(batchable[a + s].id, epochId, refId, timeIso, ok ? "ok" : "degenerate");
+    if (!ok) continue;
+    // A non-finite azimuth (no unique direction) is stored as NULL, as on the per-element path.
+    v.greenMax[i] = out.greenMax[s];
+    v.greenMin[i] = out.greenMin[s];
+    v.maxShear[i] = out.maxShear[s];
+    v.arealStrain[i] = out.arealStrain[s];
+    v.rotationDeg[i] = out.rotationDeg[s];
+    const az = out.azimuthMaxDeg[s];
+    v.azimuthMaxDeg[i] = Number.isFinite(az) ? az : NaN;
+    v.sigmaGreenMax[i] = sGMax[s];
+    v.sigmaGreenMin[i] = sGMin[s];
+    v.sigmaMaxShear[i] = sSh[s];
+    v.sigmaArealStrain[i] = sAr[s];
+  }
 }
 
 /** The site's reference as stored now and its elements' stamp (one round trip). */
@@ -271,10 +305,31 @@ export async function readResultsHead(tx: Sql, siteId: number): Promise<ResultsH
   return head ? { siteRef: head.siteRef ?? head.firstEpoch, elementsStamp: head.elementsStamp } : null;
 }
 
-/** Writes a plan's rows (`encoded`: their COPY streams, when made beforehand) in the caller's transaction; a live request's (a few epochs) are kept for the alert evaluation after commit. */
-export async function storeResults(tx: Sql, plan: ResultsPlan, rows: ResultColumns, timer?: PhaseTimer, encoded?: EncodedResultRows): Promise<number> {
-  if (rows.length === 0) return 0;
-  await copyResultRows(tx, rows, timer, encoded);
+/**
+ * Computes a plan's rows (unless `computed` has them) and writes them in the caller's transaction: a
+ * live request's (up to one statement's worth) streamed to the server while they are computed or
+ * encoded, larger sets computed first and written statement by statement. A live request's rows (a few epochs) are kept for the alert
+ * evaluation after commit.
+ */
+export async function storeResults(tx: Sql, plan: ResultsPlan, timer?: PhaseTimer, computed?: ResultColumns): Promise<number> {
+  if (plan.rowCount === 0) return 0;
+  let rows: ResultColumns;
+  if (computed && computed.length <= STREAM_ROWS) {
+    // Computed beforehand: encoded and sent slice by slice while the server inserts the slices before.
+    const all = computed;
+    rows = await streamResultRows(tx, (onRows) => {
+      for (let i = STREAM_SLICE; i < all.length; i += STREAM_SLICE) onRows(all, i);
+      return all;
+    }, timer, "results-encode");
+  } else if (computed) {
+    rows = computed;
+    await copyResultRows(tx, rows, timer);
+  } else if (plan.rowCount <= STREAM_ROWS) rows = await streamResultRows(tx, (onRows) => plan.compute(onRows), timer);
+  else {
+    rows = plan.compute();
+    timer?.lap("results-compute");
+    await copyResultRows(tx, rows, timer);
+  }
   const epochs = new Set(rows.epochId.subarray(0, rows.length)).size;
   if (epochs <= 4) keepComputed(currentDatabaseKey(), rows, plan.elements);
   return rows.length;
@@ -290,7 +345,5 @@ export async function computeResultsForEpochs(tx: Sql, siteId: number, epochs: r
   if (!head) return 0;
   const plan = await planResults(tx, siteId, epochs, head);
   opts.timer?.lap("results-read");
-  const rows = plan.compute();
-  opts.timer?.lap("results-compute");
-  return storeResults(tx, plan, rows, opts.timer);
+  return storeResults(tx, plan, opts.timer);
 }

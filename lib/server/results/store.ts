@@ -19,22 +19,23 @@ const RESULT_COLUMNS = ["elementId", "epochId", "referenceEpochId", "time", "sta
  * scan, batched heap inserts). COPY has no ON CONFLICT: it is for rows of epochs stored in the
  * same transaction, which cannot exist yet.
  */
-export async function copyResultRows(tx: Sql, rows: ResultColumns, timer?: PhaseTimer, encoded?: EncodedResultRows): Promise<void> {
-  const chunks = encoded ?? encodeResultRows(rows);
-  if (!encoded) timer?.lap("results-encode");
-  for (const c of chunks) {
-    const n = await tx.copyFrom(`COPY "ElementResult" (${RESULT_COLUMNS}) FROM STDIN (FORMAT binary)`, c.data);
-    if (n !== c.rows) throw new Error(`results: COPY stored ${n} rows of ${c.rows}`);
+export async function copyResultRows(tx: Sql, rows: ResultColumns, timer?: PhaseTimer): Promise<void> {
+  const columns = columnsOf(rows);
+  for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
+    const j = Math.min(rows.length, i + RESULT_CHUNK);
+    const data = writeCopyBinary(columns, i, j);
+    timer?.lap("results-encode");
+    const n = await tx.copyFrom(`COPY "ElementResult" (${RESULT_COLUMNS}) FROM STDIN (FORMAT binary)`, data);
+    if (n !== j - i) throw new Error(`results: COPY stored ${n} rows of ${j - i}`);
     timer?.lap("results-insert");
   }
 }
 
-/** A COPY stream per statement of up to RESULT_CHUNK rows. */
-export type EncodedResultRows = { data: Uint8Array; rows: number }[];
+/** Rows up to which `streamResultRows` is used (one statement; a live epoch has one row per element). */
+export const STREAM_ROWS = RESULT_CHUNK;
 
-/** The binary COPY streams of the rows (the ingest service encodes them while the server stores the observations). */
-export function encodeResultRows(rows: ResultColumns): EncodedResultRows {
-  const columns: CopyColumn[] = [
+function columnsOf(rows: ResultColumns): CopyColumn[] {
+  return [
     { type: "int4", values: rows.elementId },
     { type: "int4", values: rows.epochId },
     { type: "int4", values: rows.referenceEpochId },
@@ -42,10 +43,44 @@ export function encodeResultRows(rows: ResultColumns): EncodedResultRows {
     { type: "text", values: rows.status },
     ...STORED_VALUE_KEYS.map((k): CopyColumn => ({ type: "float8", values: rows.values[k] })),
   ];
-  const out: EncodedResultRows = [];
-  for (let i = 0; i < rows.length; i += RESULT_CHUNK) {
-    const j = Math.min(rows.length, i + RESULT_CHUNK);
-    out.push({ data: writeCopyBinary(columns, i, j), rows: j - i });
-  }
-  return out;
+}
+
+/** Bytes of a binary COPY stream's header (signature, flags, extension length) and trailer. */
+const HEADER_BYTES = 19;
+const TRAILER_BYTES = 2;
+
+/**
+ * Computes rows and stores them in one COPY statement at the same time: `compute` calls its
+ * `onRows` whenever more rows are in the columns (the first `upTo` of them, when given), and each
+ * new part is encoded and goes to the server at once, so the server inserts while the rest is
+ * computed (or, for rows computed beforehand, encoded). For a live epoch's rows (one statement's worth).
+ * Laps: `computeLap` when `compute` returns, results-insert when the server has stored all.
+ */
+export async function streamResultRows(
+  tx: Sql,
+  compute: (onRows: (rows: ResultColumns, upTo?: number) => void) => ResultColumns,
+  timer?: PhaseTimer,
+  /** The lap taken when `compute` returns (results-encode when it only hands on rows computed before). */
+  computeLap = "results-compute",
+): Promise<ResultColumns> {
+  let done: ResultColumns | null = null;
+  const n = await tx.copyFromProducer(`COPY "ElementResult" (${RESULT_COLUMNS}) FROM STDIN (FORMAT binary)`, (send) => {
+    let sent = 0;
+    // One stream: the header with the first part, the trailer after the last. Rows [sent, upTo) go now.
+    const flush = (rows: ResultColumns, last: boolean, upTo = rows.length): void => {
+      if (upTo <= sent && !last) return;
+      const bytes = writeCopyBinary(columnsOf(rows), sent, upTo);
+      send(bytes.subarray(sent === 0 ? 0 : HEADER_BYTES, last ? bytes.byteLength : bytes.byteLength - TRAILER_BYTES));
+      sent = Math.max(sent, upTo);
+    };
+    const rows = compute((r, upTo) => flush(r, false, upTo));
+    timer?.lap(computeLap);
+    flush(rows, true);
+    done = rows;
+  });
+  timer?.lap("results-insert");
+  const rows = done as ResultColumns | null;
+  if (!rows) throw new Error("results: the COPY ended before its rows were computed");
+  if (n !== rows.length) throw new Error(`results: COPY stored ${n} rows of ${rows.length}`);
+  return rows;
 }

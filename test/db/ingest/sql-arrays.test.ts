@@ -84,6 +84,40 @@ describe("array parameters for bulk statements", () => {
     expect(got.rows[0].neg).toBe(true);
   });
 
+  it("COPY from a producer: a stream sent in parts cut anywhere (even inside a row) is stored whole", async () => {
+    const n = 500;
+    const data = writeCopyBinary([{ type: "int4", values: Int32Array.from({ length: n }, (_, i) => i) }, { type: "float8", values: Float64Array.from({ length: n }, (_, i) => i / 7) }], 0, n);
+    const got = await withPgTransaction(async (sql) => {
+      await sql.query(`CREATE TEMP TABLE produced (i int4, f float8) ON COMMIT DROP`);
+      const stored = await sql.copyFromProducer(`COPY produced (i, f) FROM STDIN (FORMAT binary)`, (send) => {
+        for (const [a, b] of [[0, 7], [7, 100], [100, 1001], [1001, data.byteLength]]) send(data.subarray(a, b));
+      });
+      const rows = await sql.query<{ i: number; f: number }>(`SELECT i, f FROM produced ORDER BY i`);
+      return { stored, rows };
+    });
+    expect(got.stored).toBe(n);
+    expect(got.rows.every((r, k) => r.i === k && r.f === k / 7)).toBe(true);
+  });
+
+  it("COPY from a producer that throws half way: that error comes back, nothing is stored, the pool goes on", async () => {
+    await pgQuery(`CREATE TABLE IF NOT EXISTS produced_fail (i int4)`);
+    await pgQuery(`TRUNCATE produced_fail`);
+    const data = writeCopyBinary([{ type: "int4", values: Int32Array.from([1, 2, 3]) }], 0, 3);
+    const failure = new Error("the producer failed after its first part");
+    await expect(
+      withPgTransaction(async (sql) => {
+        await sql.query(`INSERT INTO produced_fail VALUES (0)`);
+        return sql.copyFromProducer(`COPY produced_fail (i) FROM STDIN (FORMAT binary)`, (send) => {
+          send(data.subarray(0, 30));
+          throw failure;
+        });
+      }),
+    ).rejects.toBe(failure);
+    expect(await pgQuery<{ n: number }>(`SELECT count(*)::int AS n FROM produced_fail`)).toEqual([{ n: 0 }]);
+    for (let k = 0; k < 5; k++) expect(await withPgTransaction((sql) => sql.query<{ one: number }>(`SELECT 1 AS one`))).toEqual([{ one: 1 }]);
+    await pgQuery(`DROP TABLE produced_fail`);
+  });
+
   it("refuses values the columns cannot hold before anything is sent", () => {
     expect(() => floatArrayBinary([1, Number.NaN])).toThrow(RangeError);
     expect(() => floatArrayBinary([Number.POSITIVE_INFINITY])).toThrow(RangeError);
