@@ -6,11 +6,11 @@
  * (`pg_advisory_xact_lock(INGEST_LOCK_NAMESPACE, siteId)`): two posts of the same epoch cannot both
  * see "not stored yet"; posts to different sites do not wait for each other. Inside it:
  *   1. unknown point codes are registered (or refused, Site.refuseUnknownPoints); known ones come
- *      from an in-memory map checked against Site.pointsStamp;
- *   2. each epoch is compared with the current revision at its time by content hash:
+ *      from an in-memory map checked against Site.pointsStamp (point-ids.ts);
+ *   2. each epoch is compared with the current revision at its time by content hash (content-hash.ts):
  *      same hash → unchanged (its id is returned); different → conflict (409), or with `revise` a new
  *      revision (the old one stays, marked not current); none → created;
- *   3. observations are written with binary COPY (while the server stores them this process hashes
+ *   3. observations are written with binary COPY (observations.ts; while the server stores them this process hashes
  *      the new epochs and, for a live request whose site reference is already known, computes their
  *      element results); then the Epoch rows (bulk INSERT … SELECT FROM unnest(…));
  *   4. one audit row and one alert-backlog row per stored epoch; the element result rows
@@ -19,25 +19,24 @@
  * Ingest never updates coordinates and never deletes; the only update is the isCurrent flag of a
  * revised epoch.
  */
-import { createHash } from "node:crypto";
 import type { Db } from "../db/client.ts";
-import { AppError, type FieldError } from "../errors.ts";
+import { AppError } from "../errors.ts";
 import { auditSafe } from "../audit.ts";
 import { checkEpochBounds } from "../schemas/ingest.ts";
 import { computeResultsForEpochs, planResults, storeResults, type EpochToCompute, type ResultsPlan } from "../results/compute.ts";
 import type { ResultColumns } from "../results/columns.ts";
 import { STREAM_ROWS } from "../results/store.ts";
-import { afterEpochsCommitted } from "../pipeline.ts";
+import { afterEpochsCommitted, type AfterResponse } from "../pipeline.ts";
 import { intArray, textArray } from "./sql-arrays.ts";
-import { CopyBinaryWriter } from "../../formats/pg-copy-binary.ts";
-import { currentDatabaseKey, withPgTransaction, type Sql } from "./pg-tx.ts";
+import { withPgTransaction, type Sql } from "./pg-tx.ts";
+import { epochContentHash, type ResolvedObservation } from "./content-hash.ts";
+import { insertObservations } from "./observations.ts";
+import { resolvePointIds } from "./point-ids.ts";
 import type { EpochInput } from "../../formats/epoch-json.ts";
 import type { PhaseTimer } from "../timing.ts";
 
 /** First key of the two-key advisory lock: "EPCH" in ASCII, so our locks are recognisable in pg_locks. */
 export const INGEST_LOCK_NAMESPACE = 0x45504348;
-/** Observations per COPY statement (about 18 MB of binary data at the most). */
-const OBSERVATION_CHUNK = 200_000;
 
 export type IngestStage = "after-points" | "after-observations" | "after-results";
 export type IngestOutcome = "created" | "unchanged" | "revised";
@@ -58,7 +57,7 @@ export interface IngestOptions {
    * Runs a task after the HTTP response has been sent (the route's next/server `after`); false when it
    * cannot. Given, the alert evaluation of the stored epochs follows the response (lib/server/alerts/backlog.ts).
    */
-  afterResponse?: (task: () => Promise<void>) => boolean;
+  afterResponse?: AfterResponse;
   /** Phase timings (the route's Server-Timing header): bounds, lock, points, classify, epochs, observations-encode, hash, observations, results-*, audit, commit, after-commit. */
   timer?: PhaseTimer;
 }
@@ -80,72 +79,6 @@ export interface IngestResult {
   newPoints: string[];
   /** Element result rows written. */
   results: number;
-}
-
-interface ResolvedObservation {
-  point: string;
-  east: number;
-  north: number;
-  height: number;
-  sigmaEast: number;
-  sigmaNorth: number;
-  sigmaHeight: number;
-}
-
-/**
- * SHA-256 (hex) of an epoch's content: observations sorted by point code (code-unit order), one line
- * each `point TAB east TAB north TAB height TAB σE TAB σN TAB σH`, numbers in JavaScript's shortest
- * round-trip form (exact: equal doubles give equal text). σ as stored (defaults applied), so the
- * same epoch from CSV, JSON or GeoJSON hashes the same. The time is not part of it.
- */
-/** String(v), remembering the last value and its text (String(v) is the same text for the same double). */
-function lastText(): (v: number) => string {
-  let last = Number.NaN;
-  let text = "NaN";
-  return (v) => (Object.is(v, last) ? text : ((last = v), (text = String(v))));
-}
-
-export function epochContentHash(obs: readonly ResolvedObservation[]): string {
-  const sorted = [...obs].sort((a, b) => (a.point < b.point ? -1 : a.point > b.point ? 1 : 0));
-  // One text, hashed once (the same bytes as one update per line, without a native call per line).
-  // σ repeats from row to row (site defaults): each column's last text is reused for the same value.
-  const se = lastText(), sn = lastText(), sh = lastText();
-  let text = "";
-  for (const o of sorted) text += `${o.point}\t${o.east}\t${o.north}\t${o.height}\t${se(o.sigmaEast)}\t${sn(o.sigmaNorth)}\t${sh(o.sigmaHeight)}\n`;
-  return createHash("sha256").update(text, "utf8").digest("hex");
-}
-
-type Tx = Sql;
-
-/**
- * Point ids per database and site, as last read, with the Site.pointsStamp they were read under
- * (database triggers change the stamp on any insert, update or delete of the site's points, by any
- * writer: migration site_cache_stamps). Ids are only ever used under the site's ingest lock after
- * the stamp has been read there, so a cached id is one the database holds. Never mutated: a request
- * that registers points changes the stamp, and the next request reads the ids again.
- */
-type PointIds = { stamp: string; ids: ReadonlyMap<string, number> };
-const POINT_IDS_KEY = Symbol.for("epochal.ingest.pointIds");
-const POINT_IDS_SITES = 64;
-type PointIdsHolder = { [POINT_IDS_KEY]?: Map<string, PointIds> };
-
-function pointIdCache(): Map<string, PointIds> {
-  const h = globalThis as PointIdsHolder;
-  h[POINT_IDS_KEY] ??= new Map();
-  return h[POINT_IDS_KEY];
-}
-
-async function sitePointIds(tx: Tx, siteId: number, stamp: string): Promise<ReadonlyMap<string, number>> {
-  const key = `${currentDatabaseKey()}#${siteId}`;
-  const c = pointIdCache();
-  const hit = c.get(key);
-  if (hit && hit.stamp === stamp) return hit.ids;
-  const rows = await tx.query<{ id: number; code: string }>(`SELECT id, code FROM "Point" WHERE "siteId" = $1`, [siteId]);
-  const ids = new Map(rows.map((r) => [r.code, r.id]));
-  c.delete(key);
-  c.set(key, { stamp, ids });
-  if (c.size > POINT_IDS_SITES) c.delete(c.keys().next().value as string);
-  return ids;
 }
 
 function transactionTimeoutMs(): number {
@@ -177,7 +110,7 @@ export async function ingestEpochs(input: readonly EpochInput[], opts: IngestOpt
   return result;
 }
 
-async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): Promise<IngestResult> {
+async function run(tx: Sql, input: readonly EpochInput[], opts: IngestOptions): Promise<IngestResult> {
   const { siteId } = opts;
   await tx.query(`SELECT pg_advisory_xact_lock($1::int, $2::int)`, [INGEST_LOCK_NAMESPACE, siteId]);
   // The site's settings, its cache stamps and its reference as stored now (first current epoch when none is set).
@@ -193,29 +126,7 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
   opts.timer?.lap("lock");
 
   // 1. Points.
-  const firstUse = new Map<string, { epoch: EpochInput; index: number }>();
-  for (const ep of input) ep.observations.forEach((o, i) => firstUse.has(o.point) || firstUse.set(o.point, { epoch: ep, index: i }));
-  const codes = [...firstUse.keys()];
-  const pointId = new Map<string, number>();
-  const siteIds = await sitePointIds(tx, siteId, site.pointsStamp);
-  const unknown: string[] = [];
-  for (const c of codes) {
-    const id = siteIds.get(c);
-    if (id === undefined) unknown.push(c);
-    else pointId.set(c, id);
-  }
-  if (unknown.length > 0 && site.refuseUnknownPoints) {
-    const errors: FieldError[] = unknown.slice(0, 100).map((c) => {
-      const u = firstUse.get(c) as { epoch: EpochInput; index: number };
-      return { line: u.epoch.observations[u.index].line, field: u.epoch.fieldOf(u.index, "point"), message: `unknown point ${JSON.stringify(c)}: this site accepts only registered points` };
-    });
-    throw new AppError("invalid", "The input names points this site does not know; nothing was stored.", { errors });
-  }
-  if (unknown.length > 0) {
-    await tx.query(`INSERT INTO "Point" ("siteId", code) SELECT $1, c FROM unnest($2::text[]) AS c ON CONFLICT ("siteId", code) DO NOTHING`, [siteId, textArray(unknown)]);
-    const added = await tx.query<{ id: number; code: string }>(`SELECT id, code FROM "Point" WHERE "siteId" = $1 AND code = ANY($2::text[])`, [siteId, textArray(unknown)]);
-    for (const p of added) pointId.set(p.code, p.id);
-  }
+  const { pointId, newPoints } = await resolvePointIds(tx, siteId, site, input);
   await opts.failpoint?.("after-points");
   opts.timer?.lap("points");
 
@@ -347,60 +258,5 @@ async function run(tx: Tx, input: readonly EpochInput[], opts: IngestOptions): P
     results = resultsPlan ? await storeResults(tx, resultsPlan, opts.timer, resultRows) : await computeResultsForEpochs(tx, siteId, toCompute, { timer: opts.timer });
     await opts.failpoint?.("after-results");
   }
-  const newPoints = unknown;
   return { stored: plan.length > 0, epochs: out as StoredEpoch[], newPoints, results };
-}
-
-/**
- * Observations go in with binary COPY (as the result rows do: cheaper for the server than INSERT …
- * SELECT FROM unnest), the stream written in one pass (every field is present: 2 int4 and 6 float8).
- * `whileStoring`: called once, when the first statement's data has been handed to the server (Node
- * work that overlaps the server's: hashing the epochs, computing their results); what it throws is
- * thrown from here.
- */
-async function insertObservations(tx: Tx, epochs: { epochId: number; obs: ResolvedObservation[] }[], pointId: Map<string, number>, timer?: PhaseTimer, whileStoring?: () => void): Promise<void> {
-  // Run from the connection's callbacks: what it throws is kept and thrown here once the COPY has answered.
-  let failure: { error: unknown } | null = null;
-  let pending = whileStoring && (() => {
-    try {
-      whileStoring();
-    } catch (error) {
-      failure = { error };
-    }
-  });
-  const sql = `COPY "Observation" ("epochId", "pointId", east, north, height, "sigmaEast", "sigmaNorth", "sigmaHeight") FROM STDIN (FORMAT binary)`;
-  let at = 0;
-  while (at < epochs.length) {
-    // Whole epochs per statement, up to OBSERVATION_CHUNK rows (at least one epoch).
-    let end = at, rows = 0;
-    while (end < epochs.length && (end === at || rows + epochs[end].obs.length <= OBSERVATION_CHUNK)) rows += epochs[end++].obs.length;
-    const w = new CopyBinaryWriter(rows * (2 + 2 * 8 + 6 * 12));
-    for (let k = at; k < end; k++) {
-      const ep = epochs[k];
-      for (const o of ep.obs) {
-        const p = pointId.get(o.point);
-        if (p === undefined) throw new Error(`ingest: point ${o.point} has no id`);
-        w.tuple(8);
-        w.int4(ep.epochId);
-        w.int4(p);
-        w.float8(o.east);
-        w.float8(o.north);
-        w.float8(o.height);
-        w.float8(o.sigmaEast);
-        w.float8(o.sigmaNorth);
-        w.float8(o.sigmaHeight);
-      }
-    }
-    const data = w.finish();
-    timer?.lap("observations-encode");
-    const onSent = pending;
-    pending = undefined;
-    const stored = await tx.copyFrom(sql, data, onSent);
-    if (failure) throw (failure as { error: unknown }).error;
-    if (stored !== rows) throw new Error(`ingest: COPY stored ${stored} observations of ${rows}`);
-    timer?.lap("observations");
-    at = end;
-  }
-  pending?.();
-  if (failure) throw (failure as { error: unknown }).error;
 }

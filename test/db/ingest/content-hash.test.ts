@@ -6,7 +6,7 @@
  */
 import { createHash } from "node:crypto";
 import { describe, expect, it } from "vitest";
-import { epochContentHash } from "../../../lib/server/ingest/service.ts";
+import { epochContentHash } from "../../../lib/server/ingest/content-hash.ts";
 
 const obs = (point: string, east: number) => ({ point, east, north: 2000.5, height: -0, sigmaEast: 0.001, sigmaNorth: 0.001, sigmaHeight: 0.0025 });
 
