@@ -16,7 +16,10 @@ import type { PhaseTimer } from "./timing.ts";
  * `afterResponse`: when the epochs came in an HTTP request, runs a task after its response has been
  * sent (false when it cannot); a listener whose work need not hold up the response may use it.
  */
-export type EpochsCommitted = { siteId: number; epochIds: number[]; timer?: PhaseTimer; afterResponse?: (task: () => Promise<void>) => boolean };
+export type EpochsCommitted = { siteId: number; epochIds: number[]; timer?: PhaseTimer; afterResponse?: AfterResponse };
+
+/** Runs `task` after the HTTP response has been sent (the route's next/server `after`); false when it cannot (then the caller runs it now). */
+export type AfterResponse = (task: () => Promise<void>) => boolean;
 export type EpochsCommittedListener = (event: EpochsCommitted) => void | Promise<void>;
 
 // Kept on globalThis so that every copy of this module (Next.js bundles, hot reloads) shares one registry.
@@ -37,7 +40,7 @@ export function onEpochsCommitted(listener: EpochsCommittedListener): () => void
   };
 }
 
-export async function afterEpochsCommitted(siteId: number, epochIds: number[], timer?: PhaseTimer, afterResponse?: EpochsCommitted["afterResponse"]): Promise<void> {
+export async function afterEpochsCommitted(siteId: number, epochIds: number[], timer?: PhaseTimer, afterResponse?: AfterResponse): Promise<void> {
   if (epochIds.length === 0) return;
   for (const l of [...listeners()]) {
     try {

@@ -7,20 +7,16 @@
  * first. Over HTTP the evaluation runs after the response has been sent (the route's after-response
  * hook): a post answers once its epochs are committed and computed, and its alerts follow in this
  * process moments later. Evaluations of one site run one after another in commit order. Reads of
- * alerts in this process first wait for the site's pending evaluations (`alertsSettled`), so a client
- * that posts and then asks for alerts sees them. Rows a stopped process left (killed between commit
+ * alerts in this process first wait for the site's pending evaluations (`alertsSettled`, pending.ts),
+ * so a client that posts and then asks for alerts sees them. Rows a stopped process left (killed between commit
  * and evaluation) are evaluated by the sweep, a job of the queue (register.ts) every minute, and at
  * every start.
  */
 import { pgQuery } from "../ingest/pg-tx.ts";
 import { intArray } from "../ingest/sql-arrays.ts";
 import { runAlerting } from "./evaluate.ts";
+import type { AfterResponse } from "../pipeline.ts";
 import { pendingEvaluations as pending } from "./pending.ts";
-
-export { alertsSettled } from "./pending.ts";
-
-/** Runs `task` after the response has been sent; false when it cannot (then the caller runs it now). */
-export type AfterResponse = (task: () => Promise<void>) => boolean;
 
 /** A gate that opens by itself after this long if the after-response hook never ran its task. */
 const GATE_MS = 5_000;

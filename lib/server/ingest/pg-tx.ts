@@ -52,17 +52,22 @@ export function currentDatabaseKey(): string {
  */
 export async function withPgTransaction<T>(fn: (sql: Sql) => Promise<T>, opts: { timeoutMs?: number } = {}): Promise<T> {
   const client = await pool(databaseUrl()).connect();
+  const copyFromProducer = (text: string, produce: (send: (chunk: Uint8Array) => void) => void): Promise<number> =>
+    new Promise((resolve, reject) => {
+      const q: ProducedCopyInQuery = new ProducedCopyInQuery(text, produce, (err, res) => (q.failure ? reject(q.failure.error) : err ? reject(err) : resolve(res?.rowCount ?? 0)));
+      client.query(q);
+    });
   const sql: Sql = {
     query: async <R>(text: string, values?: readonly unknown[]): Promise<R[]> => (await client.query(text, values as unknown[] | undefined)).rows as R[],
+    // The whole input at once, in parts of 1 MiB; `onSent` runs once it is handed to the socket,
+    // deferred past the protocol callback (the server is storing it while the caller goes on).
     copyFrom: (text: string, data: Uint8Array, onSent?: () => void): Promise<number> =>
-      new Promise((resolve, reject) => {
-        client.query(new CopyInQuery(text, data, (err, res) => (err ? reject(err) : resolve(res?.rowCount ?? 0)), onSent));
+      copyFromProducer(text, (send) => {
+        const CHUNK = 1 << 20;
+        for (let at = 0; at < data.byteLength; at += CHUNK) send(data.subarray(at, Math.min(data.byteLength, at + CHUNK)));
+        if (onSent) setImmediate(onSent);
       }),
-    copyFromProducer: (text: string, produce: (send: (chunk: Uint8Array) => void) => void): Promise<number> =>
-      new Promise((resolve, reject) => {
-        const q: ProducedCopyInQuery = new ProducedCopyInQuery(text, produce, (err, res) => (q.failure ? reject(q.failure.error) : err ? reject(err) : resolve(res?.rowCount ?? 0)));
-        client.query(q);
-      }),
+    copyFromProducer,
   };
   let broken = false;
   try {
@@ -88,28 +93,7 @@ export async function pgQuery<R>(text: string, values?: readonly unknown[]): Pro
   return (await pool(databaseUrl()).query(text, values as unknown[] | undefined)).rows as R[];
 }
 
-/** Sends a prepared byte stream as the data of one `COPY … FROM STDIN` (pg's Query refuses a COPY IN without a stream). */
-class CopyInQuery extends pg.Query {
-  constructor(
-    text: string,
-    private readonly data: Uint8Array,
-    callback: (err: Error | undefined, result?: { rowCount: number | null }) => void,
-    /** Called once the data is handed to the socket: the server is storing it while the caller goes on. */
-    private readonly onSent?: () => void,
-  ) {
-    super(text, callback as never);
-  }
-  handleCopyInResponse(connection: { sendCopyFromChunk(chunk: Buffer): void; endCopyFrom(): void }): void {
-    const CHUNK = 1 << 20;
-    for (let at = 0; at < this.data.byteLength; at += CHUNK)
-      connection.sendCopyFromChunk(Buffer.from(this.data.buffer, this.data.byteOffset + at, Math.min(CHUNK, this.data.byteLength - at)));
-    connection.endCopyFrom();
-    // Deferred past this protocol callback, so that an exception in it cannot break the connection's parser.
-    if (this.onSent) setImmediate(this.onSent);
-  }
-}
-
-/** Streams what a producer writes as the data of one `COPY … FROM STDIN`, as it writes it. */
+/** Streams what a producer writes as the data of one `COPY … FROM STDIN`, as it writes it (pg's Query refuses a COPY IN without a stream). */
 class ProducedCopyInQuery extends pg.Query {
   failure: { error: unknown } | null = null;
   constructor(

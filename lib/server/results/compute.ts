@@ -144,7 +144,7 @@ export type ResultsHead = { siteRef: number | null; elementsStamp: string };
 /**
  * The results of some epochs, ready to be computed without another query: the elements and every
  * point set they need are in memory. `compute` is synchronous (the ingest service runs it while the
- * server stores the observations); `store` writes its rows in the caller's transaction.
+ * server stores the observations); `storeResults` writes its rows in the caller's transaction.
  */
 export interface ResultsPlan {
   /** Element rows in the order the engine reads them; empty when nothing is to be computed. */
@@ -199,7 +199,7 @@ export async function planResults(tx: Sql, siteId: number, epochs: readonly Epoc
   return { elements, rowCount: elements.length * epochIds.length, compute: (onRows) => computeRows(siteElements, byRef, points, epochIds, times, onRows) };
 }
 
-/** Triangles per kernel call when rows are streamed as they are computed (`onRows`). */
+/** Triangles per kernel call when rows are streamed as they are computed (`onRows`), and rows per part when rows computed beforehand are streamed. */
 const STREAM_SLICE = 1_000;
 
 /**
@@ -308,22 +308,19 @@ export async function readResultsHead(tx: Sql, siteId: number): Promise<ResultsH
 /**
  * Computes a plan's rows (unless `computed` has them) and writes them in the caller's transaction: a
  * live request's (up to one statement's worth) streamed to the server while they are computed or
- * encoded, larger sets computed first and written statement by statement. A live request's rows (a few epochs) are kept for the alert
- * evaluation after commit.
+ * encoded, larger sets computed first and written statement by statement. A live request's rows
+ * (a few epochs) are kept for the alert evaluation after commit.
  */
 export async function storeResults(tx: Sql, plan: ResultsPlan, timer?: PhaseTimer, computed?: ResultColumns): Promise<number> {
   if (plan.rowCount === 0) return 0;
   let rows: ResultColumns;
-  if (computed && computed.length <= STREAM_ROWS) {
-    // Computed beforehand: encoded and sent slice by slice while the server inserts the slices before.
-    const all = computed;
+  if (computed) {
+    // Computed beforehand (a live request, so at most STREAM_ROWS): encoded and sent slice by slice
+    // while the server inserts the slices before.
     rows = await streamResultRows(tx, (onRows) => {
-      for (let i = STREAM_SLICE; i < all.length; i += STREAM_SLICE) onRows(all, i);
-      return all;
+      for (let i = STREAM_SLICE; i < computed.length; i += STREAM_SLICE) onRows(computed, i);
+      return computed;
     }, timer, "results-encode");
-  } else if (computed) {
-    rows = computed;
-    await copyResultRows(tx, rows, timer);
   } else if (plan.rowCount <= STREAM_ROWS) rows = await streamResultRows(tx, (onRows) => plan.compute(onRows), timer);
   else {
     rows = plan.compute();
