@@ -29,7 +29,8 @@ export function startBacklogSweep(): Promise<void> {
   h[SWEEP_KEY] ??= (async () => {
     const { boss } = await startMailWorker();
     await boss.createQueue(BACKLOG_QUEUE, { name: BACKLOG_QUEUE, policy: "singleton", retryLimit: 0 });
-    await boss.work(BACKLOG_QUEUE, { batchSize: 1, pollingIntervalSeconds: 5 }, async () => {
+    // Jobs come once a minute: polling every 30 s is soon enough and keeps an idle server's queries few.
+    await boss.work(BACKLOG_QUEUE, { batchSize: 1, pollingIntervalSeconds: 30 }, async () => {
       const r = await sweepAlertBacklog();
       if (r.epochs > 0) console.log(`epochal: evaluated ${r.epochs} epoch(s) of ${r.sites} site(s) left in the alert backlog`);
     });

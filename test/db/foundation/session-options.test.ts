@@ -1,8 +1,9 @@
 /**
  * Every connection the application opens runs with PostgreSQL's JIT off (SESSION_OPTIONS in
  * lib/server/db/client.ts says why: compiling the ingest's classification query cost 150–200 ms per
- * request once a site held a few thousand epochs). Both pools are checked: Prisma's and the plain
- * `pg` one of the ingest and alert hot paths.
+ * request once a site held a few thousand epochs; the PostgreSQL documentation, "JIT Compilation",
+ * "When to JIT?", says JIT pays off for long-running CPU-bound queries and costs short ones). Both
+ * pools are checked: Prisma's and the plain `pg` one of the ingest and alert hot paths.
  */
 import { describe, expect, it } from "vitest";
 import { getDb } from "../../../lib/server/db/client.ts";

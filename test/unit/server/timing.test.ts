@@ -5,18 +5,25 @@
 import { describe, expect, it, vi } from "vitest";
 import { PhaseTimer, parseServerTiming } from "../../../lib/server/timing.ts";
 
+/** A timer made at clock `start`, then one lap per [clock, name], on a mocked performance.now. */
+function timerWithLaps(start: number, laps: [number, string][]): PhaseTimer {
+  const now = vi.spyOn(performance, "now");
+  try {
+    now.mockReturnValue(start);
+    const t = new PhaseTimer();
+    for (const [at, name] of laps) {
+      now.mockReturnValue(at);
+      t.lap(name);
+    }
+    return t;
+  } finally {
+    now.mockRestore();
+  }
+}
+
 describe("PhaseTimer", () => {
   it("laps the time since the previous lap, adds laps of one name, keeps first-lap order", () => {
-    const now = vi.spyOn(performance, "now");
-    now.mockReturnValue(100);
-    const t = new PhaseTimer();
-    now.mockReturnValue(103.25);
-    t.lap("parse");
-    now.mockReturnValue(110);
-    t.lap("store");
-    now.mockReturnValue(111.5);
-    t.lap("parse");
-    now.mockRestore();
+    const t = timerWithLaps(100, [[103.25, "parse"], [110, "store"], [111.5, "parse"]]);
     expect(t.phases()).toEqual([
       { name: "parse", ms: 4.75 },
       { name: "store", ms: 6.75 },
@@ -25,12 +32,7 @@ describe("PhaseTimer", () => {
   });
 
   it("writes names as tokens and reads its own header back", () => {
-    const now = vi.spyOn(performance, "now");
-    now.mockReturnValue(0);
-    const t = new PhaseTimer();
-    now.mockReturnValue(2);
-    t.lap("results insert/copy");
-    now.mockRestore();
+    const t = timerWithLaps(0, [[2, "results insert/copy"]]);
     expect(t.header()).toBe("results_insert_copy;dur=2.0");
     expect(parseServerTiming(t.header())).toEqual(new Map([["results_insert_copy", 2]]));
     expect(parseServerTiming('db;desc="primary";dur=5.5, cache, app;dur=1')).toEqual(new Map([["db", 5.5], ["app", 1]]));
